@@ -1,0 +1,1 @@
+"""Build records, sizing engine, shop history and published fitment reference."""

@@ -1,0 +1,75 @@
+"""What the engine returns: plain frozen dataclasses of SI floats."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+Point = tuple[float, float]
+
+
+@dataclass(frozen=True, slots=True)
+class Flag:
+    code: str  # our own plain code, e.g. "travel-short"
+    severity: str  # "warn" | "fail"
+    message: str  # one plain sentence for a technician
+
+
+@dataclass(frozen=True, slots=True)
+class LinkagePose:
+    """Pedal linkage points in the record's frame (m), for drawing."""
+
+    pivot: Point
+    pad: Point
+    clevis: Point
+    pushrod_seat: Point
+
+
+@dataclass(frozen=True, slots=True)
+class Linkage:
+    mode: str  # "simple" | "layout"
+    ratio_at_rest: float
+    ratio_at_release: float | None  # None when the clutch never releases
+    ratio_at_stop: float
+    ratio_average: float  # over the used pad travel
+    pushrod_angle_max: float | None  # rad, largest angle to the bore axis (layout mode)
+    # (pad travel m, master stroke m, instantaneous ratio, pushrod angle rad) through the swing
+    sweep: tuple[tuple[float, float, float, float], ...]
+    rest: LinkagePose | None  # layout mode only
+    stop: LinkagePose | None  # layout mode only (where the pedal would be at its stop)
+
+
+@dataclass(frozen=True, slots=True)
+class Sizing:
+    build_id: str
+    # ratios
+    ratio_pedal: float
+    ratio_hydraulic: float
+    ratio_fork: float
+    ratio_overall: float
+    # effort, N
+    efficiency: float  # the one used for effort_predicted
+    effort_ideal: float
+    effort_predicted: float
+    # areas m^2
+    master_area: float
+    slave_area: float
+    # travel, m (fractions where named so)
+    master_stroke_used: float
+    slave_travel: float
+    slave_overtravel: bool  # slave stroke capped the travel
+    bearing_travel: float
+    needed_bearing_travel: float
+    margin: float  # fraction: bearing_travel / needed - 1
+    release_point: float | None  # fraction of pad travel; None when it never releases
+    pad_travel_to_release: float | None  # m
+    # pressure, Pa
+    pressure: float
+    # volumes, m^3
+    master_swept_volume: float  # A_master * full master stroke
+    needed_volume: float  # volume the master must push for full release, losses included
+    losses_volume: float  # hose expansion + fluid compression
+    # pedal, m
+    floor_gap: float  # 0 when the master does not bottom early
+    # (pad travel m, pad effort N) from the load curve; None without one
+    effort_curve: tuple[tuple[float, float], ...] | None
+    linkage: Linkage
+    flags: tuple[Flag, ...]

@@ -1,0 +1,170 @@
+"""Typed, immutable build records in SI units (m, m^2, N, Pa, rad).
+
+`builder.records` produces these from YAML; `builder.engine` reads them. Nothing here
+imports pint, YAML or mkdocs. Lengths are metres, areas square metres, forces newtons,
+pressures pascals, angles radians, volumes cubic metres.
+"""
+from __future__ import annotations
+
+import datetime as _dt
+import math
+from dataclasses import dataclass, field
+
+Point = tuple[float, float]
+
+STATUSES = ("draft", "measured", "verified", "rejected")
+FORK_TIP_MOVES = ("forward", "rearward", "none")
+SLAVE_KINDS = ("external", "concentric")
+HOSE_KINDS = ("rubber", "braided_ptfe", "steel")
+FLUIDS = ("DOT 3", "DOT 4", "DOT 5", "DOT 5.1")
+PART_KINDS = ("gearboxes", "clutches", "masters", "slaves", "pedals")
+
+
+def circle_area(bore: float) -> float:
+    """Area of a circular piston, A = pi * D^2 / 4 (m^2 from m)."""
+    return math.pi * bore * bore / 4.0
+
+
+@dataclass(frozen=True, slots=True)
+class Gearbox:
+    family: str
+    variant: str | None
+    fork_tip_moves: str  # one of FORK_TIP_MOVES; "none" for a concentric slave
+    part: str | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Clutch:
+    release_load: float  # N, peak load at the release bearing
+    release_travel: float  # m, bearing travel for full release
+    clearance: float  # m, bearing travel before it meets the fingers
+    load_curve: tuple[tuple[float, float], ...] | None = None  # (bearing travel m, load N)
+    part: str | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Fork:
+    pivot_to_slave: float  # m
+    pivot_to_bearing: float  # m
+
+
+@dataclass(frozen=True, slots=True)
+class Master:
+    bore: float  # m
+    stroke: float  # m
+    rated_pressure: float | None = None  # Pa
+    part: str | None = None
+
+    @property
+    def area(self) -> float:
+        return circle_area(self.bore)
+
+
+@dataclass(frozen=True, slots=True)
+class Slave:
+    kind: str  # one of SLAVE_KINDS
+    bore: float | None  # m; None when piston_area is given
+    piston_area: float | None  # m^2; an annular concentric slave gives this directly
+    stroke: float  # m
+    rated_pressure: float | None = None  # Pa
+    bracket: str | None = None
+    part: str | None = None
+
+    @property
+    def area(self) -> float:
+        if self.piston_area is not None:
+            return self.piston_area
+        assert self.bore is not None
+        return circle_area(self.bore)
+
+
+@dataclass(frozen=True, slots=True)
+class Line:
+    length: float  # m
+    hose: str  # one of HOSE_KINDS
+    fluid: str  # one of FLUIDS
+
+
+@dataclass(frozen=True, slots=True)
+class PedalLayout:
+    """Side view at rest, any consistent 2-D frame (m)."""
+
+    pivot: Point
+    pad: Point
+    clevis: Point
+    pushrod_seat: Point  # pushrod seat in the master piston, at rest
+    rotation_to_stop: float  # rad, swing to the floor stop, the way that pushes the master in
+
+
+@dataclass(frozen=True, slots=True)
+class Pedal:
+    pivot_to_pad: float | None  # m; may be omitted when layout is given
+    pivot_to_clevis: float | None  # m; may be omitted when layout is given
+    pad_travel: float  # m, pad travel from rest to the floor stop
+    pushrod: str | None = None
+    layout: PedalLayout | None = None  # wins over the two lengths when given
+    part: str | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Measured:
+    pedal_effort: float | None = None  # N, peak at the pad
+    slave_travel: float | None = None  # m
+    pad_travel_to_release: float | None = None  # m
+    floor_gap: float | None = None  # m, pad to floor when the master bottoms
+    method: str | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Build:
+    id: str
+    date: _dt.date | None
+    status: str  # one of STATUSES
+    technician: str | None
+    vehicle: str | None
+    gearbox: Gearbox
+    clutch: Clutch
+    fork: Fork | None  # None for a concentric slave
+    master: Master
+    slave: Slave
+    line: Line
+    pedal: Pedal
+    measured: Measured | None = None
+    outcome: str | None = None
+    notes: str | None = None
+    path: str = ""  # file the record came from, as given to the loader
+
+
+@dataclass(frozen=True, slots=True)
+class Part:
+    """One catalogue entry: its kind, id, an optional label and the resolved section."""
+
+    kind: str  # one of PART_KINDS
+    id: str
+    label: str | None
+    section: Gearbox | Clutch | Master | Slave | Pedal
+    path: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class ShopRules:
+    site_title: str
+    display_units: str  # "imperial" | "metric"; both are always shown, this one first
+    effort_band: tuple[float, float]  # N, (low, high) pedal effort target
+    min_travel_margin: float  # fraction, e.g. 0.10 for 10 %
+    latest_release_point: float  # fraction of pad travel, e.g. 0.80
+    default_efficiency: float  # fraction, used until history calibrates it
+    hose_expansion: dict[str, float]  # per hose kind: m^3 per m of hose per Pa (= m^2/Pa)
+    fluid_bulk_modulus: float  # Pa
+    line_bore: float = 3.2e-3  # m, inner diameter of the line, for the fluid volume
+    max_pushrod_angle: float = math.radians(5.0)  # rad, flag past this (common practice)
+
+
+@dataclass(frozen=True, slots=True)
+class Shop:
+    """Everything loaded from one records folder."""
+
+    root: str
+    rules: ShopRules
+    parts: dict[str, dict[str, Part]] = field(default_factory=dict)  # kind -> id -> Part
+    builds: tuple[Build, ...] = ()

@@ -1,0 +1,30 @@
+"""Located input problems: every bad input becomes one of these, never a traceback."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True, slots=True)
+class Problem:
+    """One thing wrong with an input file, located for a person to fix.
+
+    Printed as ``path:line:col: field: message``; line and col are 1-based,
+    0 when the position is unknown (for instance a missing file).
+    """
+
+    path: str
+    line: int
+    col: int
+    field: str
+    message: str
+
+    def __str__(self) -> str:
+        return f"{self.path}:{self.line}:{self.col}: {self.field}: {self.message}"
+
+
+class InputError(Exception):
+    """Raised with every problem found, so a command can print them all at once."""
+
+    def __init__(self, problems: list[Problem]):
+        super().__init__("\n".join(str(p) for p in problems))
+        self.problems = list(problems)
