@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 
 Point = tuple[float, float]
 
+BUILD_ID_PATTERN = r"^[A-Z]{2,6}-[0-9]{3,6}$"  # also the file name stem
 STATUSES = ("draft", "measured", "verified", "rejected")
 FORK_TIP_MOVES = ("forward", "rearward", "none")
 SLAVE_KINDS = ("external", "concentric")

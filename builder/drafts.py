@@ -1,0 +1,129 @@
+"""`fitment new`: start a draft record, copied from a past build or from a template.
+
+A new file is created exclusively (never overwriting) and then validated.
+"""
+from __future__ import annotations
+
+import datetime as dt
+import os
+import re
+from pathlib import Path
+
+from builder.model import BUILD_ID_PATTERN
+from builder.problems import InputError, Problem
+
+_TOP_KEY = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)\s*:")
+_DROPPED = {"measured", "outcome", "notes"}
+
+TEMPLATE = """\
+# Draft {id}: every value below is a placeholder. Replace each one with what the
+# parts and the car actually have before trusting `fitment check`.
+id: {id}
+date: {date}
+status: draft
+technician: XX
+vehicle: describe the car generically
+gearbox:
+  family: FAMILY
+  fork_tip_moves: rearward        # forward | rearward | none (concentric slave)
+clutch:
+  release_load: 400 lbf           # peak load at the release bearing
+  release_travel: 0.30 in         # bearing travel for full release
+  clearance: 0.06 in              # bearing travel before it meets the fingers
+fork:                             # delete for a concentric slave
+  pivot_to_slave: 5.5 in
+  pivot_to_bearing: 2.75 in
+master:
+  bore: 3/4 in
+  stroke: 1.40 in
+slave:
+  kind: external                  # external | concentric
+  bore: 7/8 in
+  stroke: 1.10 in
+line:
+  length: 36 in
+  hose: braided_ptfe              # rubber | braided_ptfe | steel
+  fluid: DOT 4                    # DOT 3 | DOT 4 | DOT 5 | DOT 5.1
+pedal:
+  pivot_to_pad: 11 in
+  pivot_to_clevis: 2 in
+  pad_travel: 6 in
+"""
+
+
+def _existing_ids(builds_dir: Path) -> dict[str, Path]:
+    if not builds_dir.is_dir():
+        return {}
+    return {path.stem: path for path in builds_dir.rglob("*.yaml")}
+
+
+def _modeline(new_file: Path, records: Path) -> str:
+    schema = records.resolve().parent / "schema" / "build.schema.json"
+    relative = os.path.relpath(schema, new_file.resolve().parent)
+    return f"# yaml-language-server: $schema={Path(relative).as_posix()}\n"
+
+
+def copy_inputs(text: str, new_id: str, like_id: str, today: dt.date) -> str:
+    """A past record's text with a new id, today's date, status draft, no results.
+
+    Comments and layout of the inputs are kept; the top-level blocks `measured`,
+    `outcome` and `notes` are dropped and a note says where the inputs came from.
+    """
+    out: list[str] = []
+    dropping = False
+    for line in text.splitlines():
+        if line.startswith("# yaml-language-server:"):
+            continue
+        match = _TOP_KEY.match(line)
+        if match:
+            key = match.group(1)
+            dropping = key in _DROPPED
+            if key == "id":
+                line = f"id: {new_id}"
+            elif key == "date":
+                line = f"date: {today.isoformat()}"
+            elif key == "status":
+                line = "status: draft"
+        elif line and not line[0].isspace() and not line.startswith("#"):
+            dropping = False
+        if not dropping:
+            out.append(line)
+    out.append("notes: |")
+    out.append(f"  Proposal; inputs copied from {like_id} on {today.isoformat()}.")
+    return "\n".join(out) + "\n"
+
+
+def create(records: Path, build_id: str, like_id: str | None,
+           today: dt.date | None = None) -> Path:
+    """Write records/builds/<year>/<build_id>.yaml exclusively and validate it."""
+    from builder.records import load_build_file, load_shop
+
+    today = today or dt.date.today()
+    where = "new"
+    if not re.match(BUILD_ID_PATTERN, build_id):
+        raise InputError([Problem(where, 0, 0, "id",
+                                  f"expected an id like AB-0123 ({BUILD_ID_PATTERN}), "
+                                  f"found {build_id!r}")])
+    shop = load_shop(records)
+    builds_dir = records / "builds"
+    existing = _existing_ids(builds_dir)
+    if build_id in existing:
+        raise InputError([Problem(str(existing[build_id]), 0, 0, "id",
+                                  f"{build_id} already exists; nothing was written")])
+    if like_id is None:
+        body = TEMPLATE.format(id=build_id, date=today.isoformat())
+    elif like_id in existing:
+        body = copy_inputs(existing[like_id].read_text(encoding="utf-8"), build_id, like_id, today)
+    else:
+        raise InputError([Problem(where, 0, 0, "like",
+                                  f"no build {like_id!r} in {builds_dir}")])
+    target = builds_dir / str(today.year) / f"{build_id}.yaml"
+    target.parent.mkdir(parents=True, exist_ok=True)
+    try:
+        with open(target, "x", encoding="utf-8") as handle:
+            handle.write(_modeline(target, records) + body)
+    except FileExistsError:
+        raise InputError([Problem(str(target), 0, 0, "id",
+                                  "file already exists; nothing was written")]) from None
+    load_build_file(target, shop)
+    return target

@@ -1,0 +1,254 @@
+"""Pedal linkage: a plain lever (two lengths) or a slider-crank drawn from a side view.
+
+Both pedal kinds answer the same questions in SI floats (m, rad): how far the master
+moves when the pad reaches its stop, where the pad is for a given master stroke, and the
+instantaneous pedal ratio (pad travel per master stroke) there.
+"""
+from __future__ import annotations
+
+import bisect
+import math
+
+from builder.engine.result import LinkagePose
+from builder.model import PedalLayout
+
+SWEEP_SAMPLES = 96  # layout mode: poses computed through the swing
+
+
+class GeometryError(ValueError):
+    """A pedal layout that cannot push a master at all (message is for the technician)."""
+
+
+def lever_ratio(arm_out: float, arm_in: float) -> float:
+    """Mechanical advantage of a lever, R = a / b (force out / force in, inverted travel).
+
+    arm_out a: pivot to where the force is applied (pad), m; arm_in b: pivot to where
+    the force is delivered (clevis), m. Source: Shigley's Mechanical Engineering Design,
+    static equilibrium of a lever (moments about the pivot).
+    """
+    return arm_out / arm_in
+
+
+def arc_length(radius: float, angle: float) -> float:
+    """Arc swept by a point at a radius, s = r * theta.
+
+    radius r in m, angle theta in rad; returns m. Source: OpenStax College Physics,
+    "Rotation Angle and Angular Velocity" (arc length).
+    """
+    return radius * angle
+
+
+class LeverPedal:
+    """Simple mode: constant ratio pivot-to-pad / pivot-to-clevis (Shigley, levers)."""
+
+    mode = "simple"
+    __slots__ = ("ratio", "pad_travel_at_stop", "stroke_at_stop")
+
+    def __init__(self, pivot_to_pad: float, pivot_to_clevis: float, pad_travel: float):
+        self.ratio = lever_ratio(pivot_to_pad, pivot_to_clevis)
+        self.pad_travel_at_stop = pad_travel
+        self.stroke_at_stop = pad_travel / self.ratio
+
+    binds = False  # a lever has no over-centre point
+
+    def at_stroke(self, stroke: float) -> tuple[float, float]:
+        """(pad travel x_pad = R_p * s in m, ratio R_p) at master stroke s (m);
+        Shigley's Mechanical Engineering Design, lever travel ratio."""
+        return stroke * self.ratio, self.ratio
+
+    def pushrod_angle_max(self, stroke_used: float) -> float | None:
+        return None
+
+    def sweep(self) -> tuple[tuple[float, float, float, float], ...]:
+        """Rest and stop only: the ratio is constant; the pushrod angle is not modelled (0)."""
+        return (
+            (0.0, 0.0, self.ratio, 0.0),
+            (self.pad_travel_at_stop, self.stroke_at_stop, self.ratio, 0.0),
+        )
+
+    def poses(self) -> tuple[LinkagePose | None, LinkagePose | None]:
+        return None, None
+
+
+class SliderCrankPedal:
+    """Layout mode: pedal = crank about the pivot, pushrod = coupler, master piston = slider.
+
+    The bore axis runs from the clevis at rest through the pushrod seat; the pushrod
+    length is |seat - clevis| at rest. Rotating the crank by theta (the sense that
+    pushes the master in) moves the seat along the axis by s(theta). Position analysis
+    of the offset slider-crank: Norton, Design of Machinery, x = r cos t + sqrt(l^2 -
+    (r sin t - e)^2), written here in the record's own frame.
+    """
+
+    mode = "layout"
+
+    def __init__(self, layout: PedalLayout):
+        self.layout = layout
+        px, py = layout.pivot
+        cx, cy = layout.clevis
+        sx, sy = layout.pushrod_seat
+        self.rod = math.hypot(sx - cx, sy - cy)
+        self.crank = (cx - px, cy - py)
+        self.pad_radius = math.hypot(layout.pad[0] - px, layout.pad[1] - py)
+        crank_radius = math.hypot(*self.crank)
+        if self.rod <= 0.0 or crank_radius <= 0.0 or self.pad_radius <= 0.0:
+            raise GeometryError(
+                "pivot, clevis, pad and pushrod seat must be distinct points"
+            )
+        self.axis = ((sx - cx) / self.rod, (sy - cy) / self.rod)
+        rate_ccw = -self.crank[1] * self.axis[0] + self.crank[0] * self.axis[1]
+        if abs(rate_ccw) < 1e-6 * crank_radius:
+            raise GeometryError(
+                "the pushrod lies along the line from pivot to clevis at rest,"
+                " so turning the pedal cannot push the master"
+            )
+        self.sense = 1.0 if rate_ccw > 0.0 else -1.0
+        self.stop_angle = layout.rotation_to_stop
+        self.pad_travel_at_stop = arc_length(self.pad_radius, self.stop_angle)
+        self._build_table()
+        self.stroke_at_stop = self._strokes[-1]
+
+    def state(self, theta: float) -> tuple[float, float, float] | None:
+        """(stroke s m, ds/dtheta m/rad, pushrod offset h m) at crank angle theta, or None
+        where the pushrod cannot reach the axis.
+
+        Seat on the axis at x with |x u - d| = l, d = clevis displacement:
+        x = a + sqrt(l^2 - h^2), a = d.u, h = u x d; s = x - l;
+        ds/dtheta = a' - h h' / sqrt(l^2 - h^2). Norton, Design of Machinery,
+        slider-crank position and velocity analysis.
+        """
+        turn = self.sense * theta
+        cos_t, sin_t = math.cos(turn), math.sin(turn)
+        k0x, k0y = self.crank
+        kx = k0x * cos_t - k0y * sin_t
+        ky = k0x * sin_t + k0y * cos_t
+        ux, uy = self.axis
+        dx, dy = kx - k0x, ky - k0y
+        along = dx * ux + dy * uy
+        offset = ux * dy - uy * dx
+        room = self.rod * self.rod - offset * offset
+        if room <= 0.0:
+            return None
+        root = math.sqrt(room)
+        vx, vy = -self.sense * ky, self.sense * kx
+        along_rate = vx * ux + vy * uy
+        offset_rate = ux * vy - uy * vx
+        return along + root - self.rod, along_rate - offset * offset_rate / root, offset
+
+    def _pushes(self, theta: float) -> bool:
+        """True while turning further still pushes the master in."""
+        return _pushing(self.state(theta))
+
+    def _build_table(self) -> None:
+        """Sample the swing; end it early where the linkage goes over centre (binds)."""
+        thetas = _spaced(self.stop_angle)
+        states = [self.state(t) for t in thetas]
+        bad = next((i for i, st in enumerate(states) if not _pushing(st)), None)
+        self.binds = bad is not None
+        self.end_angle = self.stop_angle
+        if self.binds:
+            self.end_angle = _last_true(self._pushes, thetas[bad - 1], thetas[bad])
+            thetas = _spaced(self.end_angle)
+            states = [self.state(t) for t in thetas]
+        self._thetas = thetas
+        self._strokes = [st[0] for st in states]
+        self._states = states
+
+    def solve(self, stroke: float) -> tuple[float, tuple[float, float, float]]:
+        """(crank angle rad, state) where the master has moved `stroke` (m): Newton's
+        method on s(theta) - stroke, started inside a bracket from the sampled swing."""
+        strokes, thetas = self._strokes, self._thetas
+        if stroke <= 0.0:
+            return 0.0, self._states[0]
+        if stroke >= strokes[-1]:
+            return thetas[-1], self._states[-1]
+        i = bisect.bisect_right(strokes, stroke)
+        lo, hi = thetas[i - 1], thetas[i]
+        s_lo, s_hi = strokes[i - 1], strokes[i]
+        theta = lo + (hi - lo) * (stroke - s_lo) / (s_hi - s_lo)
+        for _ in range(8):
+            state = self.state(theta)
+            if abs(state[0] - stroke) < 1e-12:
+                break
+            theta = min(max(theta - (state[0] - stroke) / state[1], lo), hi)
+        return theta, state
+
+    def at_stroke(self, stroke: float) -> tuple[float, float]:
+        """(pad travel along its arc r_pad * theta in m, instantaneous ratio
+        d(pad arc)/ds = r_pad / (ds/dtheta)) at master stroke s (m)."""
+        theta, state = self.solve(stroke)
+        return arc_length(self.pad_radius, theta), self.pad_radius / state[1]
+
+    def pushrod_angle(self, offset: float) -> float:
+        """Pushrod angle to the bore axis, asin(|h| / l) (rad)."""
+        return math.asin(min(1.0, abs(offset) / self.rod))
+
+    def pushrod_angle_max(self, stroke_used: float) -> float:
+        """Largest pushrod angle to the bore axis over the used swing (rad)."""
+        theta_used, state_used = self.solve(stroke_used)
+        offsets = [st[2] for t, st in zip(self._thetas, self._states) if t <= theta_used]
+        offsets.append(state_used[2])
+        return self.pushrod_angle(max(offsets, key=abs))
+
+    def sweep(self) -> tuple[tuple[float, float, float, float], ...]:
+        """(pad travel m, master stroke m, instantaneous ratio, pushrod angle rad) from
+        rest to the stop (or to where the linkage binds)."""
+        return tuple(
+            (
+                arc_length(self.pad_radius, t),
+                s,
+                self.pad_radius / rate,
+                self.pushrod_angle(offset),
+            )
+            for t, (s, rate, offset) in zip(self._thetas, self._states)
+        )
+
+    def pose(self, theta: float) -> LinkagePose:
+        """Linkage points (m, record frame) with the pedal turned by theta."""
+        lay = self.layout
+        turn = self.sense * theta
+        stroke = self.state(theta)[0]
+        seat_from_clevis = self.rod + stroke
+        return LinkagePose(
+            pivot=lay.pivot,
+            pad=_rotate(lay.pad, lay.pivot, turn),
+            clevis=_rotate(lay.clevis, lay.pivot, turn),
+            pushrod_seat=(
+                lay.clevis[0] + seat_from_clevis * self.axis[0],
+                lay.clevis[1] + seat_from_clevis * self.axis[1],
+            ),
+        )
+
+    def poses(self) -> tuple[LinkagePose, LinkagePose]:
+        """Rest pose and the pose at the stop (or where the linkage binds), master
+        bottoming ignored."""
+        return self.pose(0.0), self.pose(self.end_angle)
+
+
+def _pushing(state: tuple[float, float, float] | None) -> bool:
+    return state is not None and state[1] > 0.0
+
+
+def _spaced(end: float) -> list[float]:
+    """SWEEP_SAMPLES angles evenly spaced from 0 to end."""
+    step = end / (SWEEP_SAMPLES - 1)
+    return [i * step for i in range(SWEEP_SAMPLES)]
+
+
+def _rotate(point: tuple[float, float], centre: tuple[float, float],
+            angle: float) -> tuple[float, float]:
+    """Rotate a point about a centre by angle (rad, counter-clockwise)."""
+    dx, dy = point[0] - centre[0], point[1] - centre[1]
+    cos_a, sin_a = math.cos(angle), math.sin(angle)
+    return (centre[0] + dx * cos_a - dy * sin_a, centre[1] + dx * sin_a + dy * cos_a)
+
+
+def _last_true(pred, good: float, bad: float) -> float:
+    """Bisection: the last value between good (pred true) and bad (pred false)."""
+    for _ in range(60):
+        mid = 0.5 * (good + bad)
+        if pred(mid):
+            good = mid
+        else:
+            bad = mid
+    return good

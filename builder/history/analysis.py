@@ -1,0 +1,114 @@
+"""Everything the report and the site need about a shop's builds, computed once."""
+from __future__ import annotations
+
+from collections.abc import Callable, Iterator, Mapping
+from dataclasses import dataclass
+
+from builder.engine import GeometryError, size_build
+from builder.engine.result import Sizing
+from builder.history.calibration import Calibration, Prediction, calibrate
+from builder.history.deltas import Deltas, deltas
+from builder.history.similar import SimilarBuild, SimilarityIndex
+from builder.model import Build, Shop
+from builder.problems import InputError, Problem
+
+
+class SimilarLists(Mapping[str, list[SimilarBuild]]):
+    """Build id -> its k most similar measured builds (itself left out), found on first use.
+
+    A query per build for the whole shop would be wasted work for a command that shows one
+    build; the site asks for each page's list as it writes the page.
+    """
+
+    def __init__(self, builds: Mapping[str, Build], sizings: Mapping[str, Sizing],
+                 index: SimilarityIndex, k: int):
+        self._builds, self._sizings, self._index, self._k = builds, sizings, index, k
+        self._found: dict[str, list[SimilarBuild]] = {}
+
+    def __getitem__(self, build_id: str) -> list[SimilarBuild]:
+        if build_id not in self._found:
+            build = self._builds[build_id]
+            self._found[build_id] = self._index.query(
+                build, self._sizings[build_id], k=self._k, exclude_id=build_id)
+        return self._found[build_id]
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self._builds)
+
+    def __len__(self) -> int:
+        return len(self._builds)
+
+
+@dataclass(frozen=True)
+class Analysis:
+    """Sizing, deltas, calibration, calibrated predictions and similar builds of a shop."""
+
+    shop: Shop
+    sizings: dict[str, Sizing]  # every build
+    deltas: dict[str, Deltas]  # every build (all None without a measured section)
+    calibration: Calibration
+    predictions: dict[str, Prediction]  # every build; a build never predicts itself
+    similar: SimilarLists  # every build, computed on first access
+    index: SimilarityIndex
+    k: int = 5
+
+    def similar_for(self, build_id: str, k: int | None = None) -> list[SimilarBuild]:
+        """The most similar measured builds to a recorded build, itself left out."""
+        if k is None or k == self.k:
+            return self.similar[build_id]
+        build = next(b for b in self.shop.builds if b.id == build_id)
+        return self.index.query(build, self.sizings[build_id], k=k, exclude_id=build_id)
+
+
+def analyse(shop: Shop, k: int = 5,
+            progress: Callable[[int, int], None] | None = None) -> Analysis:
+    """Size every build with the shop rules, then deltas, calibration, predictions.
+
+    `progress(done, total)`, when given, is called as builds are sized. A pedal layout
+    that cannot push its master raises InputError naming every such build.
+    """
+    builds = {b.id: b for b in shop.builds}
+    sizings: dict[str, Sizing] = {}
+    problems: list[Problem] = []
+    for done, build in enumerate(shop.builds, start=1):
+        try:
+            sizings[build.id] = size_build(build, shop.rules)
+        except GeometryError as error:
+            problems.append(_geometry_problem(build, error))
+        if progress is not None:
+            progress(done, len(builds))
+    if problems:
+        raise InputError(problems)
+    pairs = [(b, sizings[b.id]) for b in shop.builds]
+    calibration = calibrate(pairs)
+    index = SimilarityIndex(pairs, system=shop.rules.display_units)
+    return Analysis(
+        shop=shop,
+        sizings=sizings,
+        deltas={b.id: deltas(b, s) for b, s in pairs},
+        calibration=calibration,
+        predictions={b.id: calibration.predict(b, s) for b, s in pairs},
+        similar=SimilarLists(builds, sizings, index, k),
+        index=index,
+        k=k,
+    )
+
+
+def analyse_proposal(analysis: Analysis, build: Build, k: int | None = None
+                     ) -> tuple[Sizing, Prediction, list[SimilarBuild], Deltas]:
+    """Size and predict a build against the shop's history (for `fitment check FILE`).
+
+    A file that is also in the records is left out of its own prediction and similar list.
+    """
+    try:
+        sizing = size_build(build, analysis.shop.rules)
+    except GeometryError as error:
+        raise InputError([_geometry_problem(build, error)]) from None
+    prediction = analysis.calibration.predict(build, sizing)
+    similar = analysis.index.query(build, sizing, k=analysis.k if k is None else k,
+                                   exclude_id=build.id)
+    return sizing, prediction, similar, deltas(build, sizing)
+
+
+def _geometry_problem(build: Build, error: GeometryError) -> Problem:
+    return Problem(build.path or build.id, 0, 0, "pedal.layout", str(error))

@@ -1,0 +1,288 @@
+"""Calibration: the shop's real losses, learned from its own measured builds.
+
+Which builds count: status `measured` or `verified` with a measured pedal effort (rejected
+builds and drafts never do). Per build:
+
+- apparent efficiency e = ideal effort / measured effort (ideal = release load / overall ratio);
+- travel factor t = measured slave travel / computed slave travel.
+
+Per gearbox family and shop-wide: the median and the scaled MAD (1.4826 * median absolute
+deviation, see `builder.history.robust`). A thin family is shrunk toward the shop-wide median:
+value = w * family median + (1 - w) * shop-wide median, with w = n / (n + 3 * (1 - n / 10))
+for n < 10 builds (a prior worth three builds that fades out linearly) and w = 1 from ten
+builds on, so a well-recorded family is predicted from its own history alone.
+
+Leave-one-out: every counted build is predicted from all the others (the same rules, itself
+removed from its family and from the shop-wide set); its relative residual
+r = (measured - predicted) / predicted gives the reported errors (median and 90th percentile
+of |r|) and the prediction interval: predicted * (1 + 10th percentile of r) to
+predicted * (1 + 90th percentile of r), an 80 % interval, from the family's residuals when it
+has five or more, else from the shop-wide ones. Fewer than three builds: no prediction.
+"""
+from __future__ import annotations
+
+import inspect
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from builder.engine.result import Sizing
+from builder.history.robust import medians_leaving_one_out, quantile_without, scaled_mad
+from builder.model import Build
+
+SHOP_WIDE = "shop-wide"
+COUNTED_STATUSES = ("measured", "verified")
+MIN_BUILDS = 3  # fewer builds than this in total: no calibrated prediction
+PRIOR_BUILDS = 3.0  # n0: the shop-wide value counts as this many builds of a thin family
+FULL_WEIGHT_BUILDS = 10  # from this many builds a family stands on its own (w = 1)
+FAMILY_INTERVAL_BUILDS = 5  # a family's own residuals set the interval from this many on
+INTERVAL_QUANTILES = (0.10, 0.90)  # an 80 % interval from the empirical residual quantiles
+INTERVAL_PERCENT = round(100 * (INTERVAL_QUANTILES[1] - INTERVAL_QUANTILES[0]))
+ERROR_QUANTILE = 0.90  # reported alongside the median absolute leave-one-out error
+
+
+def calibration_description() -> str:
+    """The calibration method in plain words, for the site (this module's docstring)."""
+    return inspect.cleandoc(__doc__)
+
+
+def shrink_weight(n: int) -> float:
+    """Weight w of a family's own median: n / (n + n0 * (1 - n / 10)) below 10 builds, else 1."""
+    if n >= FULL_WEIGHT_BUILDS:
+        return 1.0
+    if n <= 0:
+        return 0.0
+    return n / (n + PRIOR_BUILDS * (1.0 - n / FULL_WEIGHT_BUILDS))
+
+
+@dataclass(frozen=True, slots=True)
+class GroupCalibration:
+    """Calibration of one gearbox family, or of the whole shop (name "shop-wide")."""
+
+    name: str
+    n: int  # builds with a measured effort
+    efficiency: float | None  # used for predictions (shrunk for a thin family)
+    efficiency_median: float | None  # the group's own median
+    efficiency_mad: float | None  # scaled MAD (1.4826 * MAD)
+    weight: float  # shrink weight w of the group's own median (1 for shop-wide)
+    travel_factor: float | None  # used for predictions (shrunk for a thin family)
+    travel_factor_median: float | None
+    travel_factor_mad: float | None
+    n_travel: int  # builds with a measured slave travel
+    travel_weight: float
+    loo_median_abs_err: float | None  # median |r| of leave-one-out effort predictions
+    loo_p90_abs_err: float | None  # 90th percentile of |r|
+    residuals: tuple[float, ...]  # leave-one-out relative residuals r, ascending
+
+
+@dataclass(frozen=True, slots=True)
+class Prediction:
+    """A calibrated effort prediction for one build."""
+
+    effort: float | None  # N; None with "not enough history"
+    interval: tuple[float, float] | None  # N, 80 % interval (10th to 90th percentile)
+    n_builds: int  # builds behind the estimate (never the build itself)
+    basis: str  # plain words: which history the estimate and interval come from
+    note: str | None  # e.g. "not enough history (2 builds)"
+    slave_travel: float | None = None  # m, computed slave travel * calibrated travel factor
+
+
+@dataclass(frozen=True, slots=True)
+class _Estimate:
+    value: float | None
+    weight: float
+    n_family: int
+    n_shop: int
+
+
+class _ShrunkMedians:
+    """Per-family medians shrunk toward the shop-wide median, with leave-one-out values."""
+
+    def __init__(self, ids: list[str], families: list[str], values: list[float]):
+        self.values = np.asarray(values, dtype=float)
+        self.index = {build_id: i for i, build_id in enumerate(ids)}
+        self.families = families
+        self.members = _members(families)
+        n = len(values)
+        self.shop_median = float(np.median(self.values)) if n else None
+        self.shop_mad = scaled_mad(self.values) if n else None
+        self.family_median = {f: float(np.median(self.values[i])) for f, i in self.members.items()}
+        self.family_mad = {f: scaled_mad(self.values[i]) for f, i in self.members.items()}
+        # medians without build i: shop-wide, and of its own family (NaN when it is alone)
+        self.shop_loo = medians_leaving_one_out(self.values) if n >= 2 else np.full(n, np.nan)
+        self.family_loo = np.full(n, np.nan)
+        for members in self.members.values():
+            if len(members) >= 2:
+                self.family_loo[members] = medians_leaving_one_out(self.values[members])
+        self.loo = np.array([_or_nan(self.estimate(families[i], ids[i]).value) for i in range(n)])
+
+    def count(self, family: str | None) -> int:
+        return len(self.members.get(family, ())) if family is not None else len(self.values)
+
+    def summary(self, family: str | None) -> tuple[int, float | None, float | None,
+                                                    float | None, float]:
+        """(n, value used for predictions, own median, own scaled MAD, shrink weight);
+        family None is the shop-wide group."""
+        if family is None:
+            value = self.estimate(None).value
+            return len(self.values), value, self.shop_median, self.shop_mad, 1.0
+        estimate = self.estimate(family)
+        return (self.count(family), estimate.value, self.family_median.get(family),
+                self.family_mad.get(family), estimate.weight)
+
+    def estimate(self, family: str | None, exclude_id: str | None = None) -> _Estimate:
+        """The shrunk value for `family` (None: shop-wide), the build `exclude_id` left out."""
+        n_family, n_shop = (self.count(family) if family is not None else 0), len(self.values)
+        family_median, shop_median = self.family_median.get(family), self.shop_median
+        i = self.index.get(exclude_id) if exclude_id is not None else None
+        if i is not None:
+            n_shop -= 1
+            shop_median = float(self.shop_loo[i])
+            if self.families[i] == family:
+                n_family -= 1
+                family_median = float(self.family_loo[i])
+        weight = shrink_weight(n_family)
+        if n_shop < MIN_BUILDS:
+            return _Estimate(None, weight, n_family, n_shop)
+        value = shop_median if weight == 0 else weight * family_median + (1 - weight) * shop_median
+        return _Estimate(value, weight, n_family, n_shop)
+
+
+def _or_nan(value: float | None) -> float:
+    return np.nan if value is None else value
+
+
+def _members(families: list[str]) -> dict[str, np.ndarray]:
+    groups: dict[str, list[int]] = {}
+    for i, family in enumerate(families):
+        groups.setdefault(family, []).append(i)
+    return {f: np.asarray(groups[f], dtype=np.intp) for f in sorted(groups)}
+
+
+class _Residuals:
+    """Sorted leave-one-out residuals of one group, and where each build's own one sits."""
+
+    def __init__(self, ids: list[str], residuals: np.ndarray):
+        order = np.argsort(residuals, kind="stable")
+        self.ordered = residuals[order]
+        self.rank = {ids[i]: r for r, i in enumerate(order)}
+
+    def count_without(self, build_id: str) -> int:
+        return len(self.ordered) - (build_id in self.rank)
+
+    def quantile_without(self, q: float, build_id: str) -> float:
+        return quantile_without(self.ordered, q, self.rank.get(build_id))
+
+
+class Calibration:
+    """Shop-wide and per-family calibration; `predict` gives a calibrated effort."""
+
+    def __init__(self, efficiency: _ShrunkMedians, travel: _ShrunkMedians, ids: list[str]):
+        self._efficiency = efficiency
+        self._travel = travel
+        # effort residual: measured / predicted - 1 = e_loo / e - 1 (predicted = ideal / e_loo)
+        residuals = efficiency.loo / efficiency.values - 1.0
+        known = np.isfinite(residuals)
+        groups = {SHOP_WIDE: np.flatnonzero(known)}
+        groups.update((f, members[known[members]]) for f, members in efficiency.members.items())
+        self._residuals = {name: _Residuals([ids[i] for i in where], residuals[where])
+                           for name, where in groups.items()}
+        self.shop = self._group(SHOP_WIDE, None)
+        names = sorted(set(efficiency.members) | set(travel.members))
+        self.families = {name: self._group(name, name) for name in names}
+
+    @property
+    def n_builds(self) -> int:
+        """Builds that count toward the calibration (a measured effort)."""
+        return len(self._efficiency.values)
+
+    def _group(self, name: str, family: str | None) -> GroupCalibration:
+        n, efficiency, efficiency_median, efficiency_mad, weight = self._efficiency.summary(family)
+        n_travel, travel, travel_median, travel_mad, travel_weight = self._travel.summary(family)
+        residuals = self._residuals.get(name)
+        ordered = residuals.ordered if residuals is not None else np.empty(0)
+        abs_err = np.abs(ordered)
+        return GroupCalibration(
+            name=name,
+            n=n,
+            efficiency=efficiency,
+            efficiency_median=efficiency_median,
+            efficiency_mad=efficiency_mad,
+            weight=weight,
+            travel_factor=travel,
+            travel_factor_median=travel_median,
+            travel_factor_mad=travel_mad,
+            n_travel=n_travel,
+            travel_weight=travel_weight,
+            loo_median_abs_err=float(np.median(abs_err)) if len(abs_err) else None,
+            loo_p90_abs_err=float(np.percentile(abs_err, 100 * ERROR_QUANTILE))
+            if len(abs_err) else None,
+            residuals=tuple(float(r) for r in ordered),
+        )
+
+    def predict(self, build: Build, sizing: Sizing) -> Prediction:
+        """Calibrated effort for a build; a build in the history is left out of its own."""
+        family = build.gearbox.family
+        estimate = self._efficiency.estimate(family, exclude_id=build.id)
+        if estimate.value is None:
+            count = estimate.n_shop
+            note = f"not enough history ({count} build{'' if count == 1 else 's'})"
+            return Prediction(None, None, count, "", note)
+        effort = sizing.effort_ideal / estimate.value
+        travel = self._travel.estimate(family, exclude_id=build.id).value
+        interval, interval_words = self._interval(family, build.id, effort)
+        full_weight = estimate.weight == 1.0
+        return Prediction(
+            effort=effort,
+            interval=interval,
+            n_builds=estimate.n_family if full_weight else estimate.n_shop,
+            basis=f"{_estimate_words(family, estimate)}; {interval_words}",
+            note=None if interval else "no interval yet: too few leave-one-out residuals",
+            slave_travel=sizing.slave_travel * travel if travel is not None else None,
+        )
+
+    def _interval(self, family: str, build_id: str, effort: float
+                  ) -> tuple[tuple[float, float] | None, str]:
+        for name in (family, SHOP_WIDE):
+            residuals = self._residuals.get(name)
+            if residuals is None or residuals.count_without(build_id) < FAMILY_INTERVAL_BUILDS:
+                continue
+            low, high = (residuals.quantile_without(q, build_id) for q in INTERVAL_QUANTILES)
+            words = "family" if name == family else "shop-wide"
+            count = residuals.count_without(build_id)
+            return (effort * (1 + low), effort * (1 + high)), (
+                f"{INTERVAL_PERCENT} % interval from {count} {words} leave-one-out residuals")
+        return None, "no interval"
+
+
+def _estimate_words(family: str, estimate: _Estimate) -> str:
+    if estimate.weight == 1.0:
+        return f"family {family}: median of {estimate.n_family} builds"
+    if estimate.weight == 0.0:
+        return f"shop-wide median of {estimate.n_shop} builds (no other {family} builds)"
+    return (f"family {family} ({estimate.n_family} builds) shrunk toward the shop-wide median "
+            f"of {estimate.n_shop} builds, family weight {estimate.weight:.2f}")
+
+
+def calibrate(pairs: Sequence[tuple[Build, Sizing]]) -> Calibration:
+    """Calibrate from (build, sizing) pairs; only measured or verified builds count."""
+    effort_rows: list[tuple[str, str, float]] = []
+    travel_rows: list[tuple[str, str, float]] = []
+    for build, sizing in pairs:
+        measured = build.measured
+        if build.status not in COUNTED_STATUSES or measured is None:
+            continue
+        family = build.gearbox.family
+        effort = measured.pedal_effort
+        if effort is not None and effort > 0 and sizing.effort_ideal > 0:
+            effort_rows.append((build.id, family, sizing.effort_ideal / effort))
+        if measured.slave_travel is not None and sizing.slave_travel > 0:
+            travel_rows.append((build.id, family, measured.slave_travel / sizing.slave_travel))
+    efficiency = _ShrunkMedians(*_columns(effort_rows))
+    travel = _ShrunkMedians(*_columns(travel_rows))
+    return Calibration(efficiency, travel, [row[0] for row in effort_rows])
+
+
+def _columns(rows: list[tuple[str, str, float]]) -> tuple[list[str], list[str], list[float]]:
+    return [r[0] for r in rows], [r[1] for r in rows], [r[2] for r in rows]

@@ -1,0 +1,162 @@
+"""Similar builds: how far apart two builds are.
+
+The distance between two builds adds up:
+
+- 1.0 when the gearbox family differs, 1.0 when the fork tip moves the other way (or one
+  build has a concentric slave, "none"), 1.0 when the slave kind differs (external or
+  concentric);
+- for each of master bore, slave bore, pedal ratio, overall ratio and release load,
+  |ln(a / b)| / ln(1.10): a 10 % difference in one of them adds 1.0, as much as a different
+  gearbox family, and the same ratio counts the same for small and large parts. An annular
+  (concentric) slave that gives its piston area is compared by the bore of a round piston
+  of the same area.
+
+An identical build is at distance 0. Candidates are the builds with a measured section
+(measured, verified and rejected: a rejected build close to a proposal is a warning). The
+nearest come first; equal distances are ordered by build id. "What differs" names each
+mismatch and each quantity that differs by 1 % or more, the similar build's value first,
+then the build asked about, and the relative difference between them.
+"""
+from __future__ import annotations
+
+import inspect
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from builder.engine.result import Sizing
+from builder.model import Build
+from builder.units import show_one
+
+CATEGORY_WEIGHTS = {"family": 1.0, "fork tip": 1.0, "slave kind": 1.0}
+NUMERIC_SCALE = math.log(1.10)  # a 10 % difference adds 1.0
+NOTABLE_DIFFERENCE = 0.01  # quantities closer than 1 % are not listed as differing
+CANDIDATE_STATUSES = ("measured", "verified", "rejected")
+
+
+def distance_description() -> str:
+    """The distance in plain words, for the site's method page (this module's docstring)."""
+    return inspect.cleandoc(__doc__)
+
+
+@dataclass(frozen=True, slots=True)
+class SimilarBuild:
+    id: str
+    distance: float
+    differs: tuple[str, ...]  # plain words, the similar build's value first
+    measured_effort: float | None  # N
+    outcome: str | None
+    status: str
+    measured_slave_travel: float | None = None  # m
+
+
+def _categories(build: Build) -> tuple[str, str, str]:
+    return build.gearbox.family, build.gearbox.fork_tip_moves, build.slave.kind
+
+
+def _equivalent_bore(build: Build) -> float:
+    """Bore of a round piston with the slave's area, D = sqrt(4 A / pi) (m)."""
+    return math.sqrt(4.0 * build.slave.area / math.pi)
+
+
+def _numbers(build: Build, sizing: Sizing) -> tuple[float, ...]:
+    return (build.master.bore, _equivalent_bore(build), sizing.ratio_pedal,
+            sizing.ratio_overall, build.clutch.release_load)
+
+
+def _log_scaled(values) -> np.ndarray:
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.log(np.asarray(values, dtype=float)) / NUMERIC_SCALE
+
+
+class SimilarityIndex:
+    """Measured builds in a feature matrix built once; `query` finds the nearest k."""
+
+    def __init__(self, pairs: Sequence[tuple[Build, Sizing]], system: str = "imperial"):
+        self.system = system  # "imperial" | "metric": units for "what differs"
+        self._pairs = [(b, s) for b, s in pairs
+                       if b.measured is not None and b.status in CANDIDATE_STATUSES]
+        self._index = {b.id: i for i, (b, _) in enumerate(self._pairs)}
+        columns = list(zip(*(_categories(b) for b, _ in self._pairs))) or [(), (), ()]
+        self._codes = [{value: code for code, value in enumerate(sorted(set(col)))}
+                       for col in columns]
+        self._categorical = np.array(
+            [[codes[value] for value in col] for codes, col in zip(self._codes, columns)],
+            dtype=np.int32).reshape(3, len(self._pairs))
+        self._weights = np.array(list(CATEGORY_WEIGHTS.values()))
+        self._numeric = _log_scaled([_numbers(b, s) for b, s in self._pairs]).reshape(-1, 5)
+        ranks = np.argsort(np.array([b.id for b, _ in self._pairs], dtype=object), kind="stable")
+        self._id_rank = np.empty(len(self._pairs), dtype=np.intp)
+        self._id_rank[ranks] = np.arange(len(self._pairs))
+
+    def __len__(self) -> int:
+        return len(self._pairs)
+
+    def distances(self, build: Build, sizing: Sizing) -> np.ndarray:
+        """Distance from the build to every candidate, in candidate order."""
+        codes = np.array([codes.get(value, -1)
+                          for codes, value in zip(self._codes, _categories(build))])
+        mismatch = self._categorical != codes[:, None]
+        apart = np.abs(self._numeric - _log_scaled(_numbers(build, sizing)))
+        apart = np.where(np.isfinite(apart), apart, 1.0)  # a quantity not known counts 1.0
+        return self._weights @ mismatch + apart.sum(axis=1)
+
+    def query(self, build: Build, sizing: Sizing, k: int = 5,
+              exclude_id: str | None = None) -> list[SimilarBuild]:
+        """The k nearest measured builds, nearest first, ties by id; `exclude_id` left out."""
+        distance = self.distances(build, sizing)
+        excluded = self._index.get(exclude_id) if exclude_id is not None else None
+        if excluded is not None:
+            distance[excluded] = np.inf
+        count = min(k, len(distance) - (excluded is not None))
+        if count <= 0:
+            return []
+        kth = np.partition(distance, count - 1)[count - 1]
+        near = np.flatnonzero(distance <= kth)
+        near = near[np.lexsort((self._id_rank[near], distance[near]))][:count]
+        return [self._similar(build, sizing, int(i), float(distance[i])) for i in near]
+
+    def _similar(self, build: Build, sizing: Sizing, i: int, distance: float) -> SimilarBuild:
+        other, other_sizing = self._pairs[i]
+        measured = other.measured
+        return SimilarBuild(
+            id=other.id,
+            distance=distance,
+            differs=differences(other, other_sizing, build, sizing, self.system),
+            measured_effort=measured.pedal_effort,
+            outcome=other.outcome,
+            status=other.status,
+            measured_slave_travel=measured.slave_travel,
+        )
+
+
+def differences(other: Build, other_sizing: Sizing, build: Build, sizing: Sizing,
+                system: str = "imperial") -> tuple[str, ...]:
+    """What differs, in plain words: `other`'s value first, then `build`'s."""
+    words = [f"{name} {theirs} vs {ours}"
+             for name, theirs, ours in zip(CATEGORY_WEIGHTS, _categories(other), _categories(build))
+             if theirs != ours]
+    area_given = other.slave.piston_area is not None or build.slave.piston_area is not None
+    slave = (("slave piston area", other.slave.area, build.slave.area, "area") if area_given
+             else ("slave bore", _equivalent_bore(other), _equivalent_bore(build), "length"))
+    quantities = (
+        ("master bore", other.master.bore, build.master.bore, "length"),
+        slave,
+        ("pedal ratio", other_sizing.ratio_pedal, sizing.ratio_pedal, None),
+        ("overall ratio", other_sizing.ratio_overall, sizing.ratio_overall, None),
+        ("release load", other.clutch.release_load, build.clutch.release_load, "force"),
+    )
+    for name, theirs, ours, dimension in quantities:
+        if ours > 0 and abs(theirs / ours - 1.0) >= NOTABLE_DIFFERENCE:
+            words.append(f"{name} {_show(theirs, dimension, system)} vs "
+                         f"{_show(ours, dimension, system)} ({100 * (theirs / ours - 1):+.0f} %)")
+    return tuple(words)
+
+
+def _show(value: float, dimension: str | None, system: str) -> str:
+    if dimension is None:
+        return f"{value:.1f}"
+    return show_one(value, dimension, system)
+

@@ -1,0 +1,333 @@
+"""Loading a records folder: shop rules, parts catalogue and builds, every problem located.
+
+Each file takes the fast path first (libyaml, compiled schema, cached units) and is loaded
+again carefully, with positions, only when something in it needs reporting.
+"""
+from __future__ import annotations
+
+import difflib
+import os
+from collections.abc import Callable, Iterable
+from pathlib import Path
+
+from builder import model
+from builder.problems import InputError, Problem
+from builder.records import fields as f
+from builder.records._schema import dotted, is_valid_fast, schema_problems
+from builder.records._yaml import NeedsCare, careful_load, fast_load, read_text
+
+YAML_SUFFIXES = (".yaml", ".yml")
+_MEASURED_STATUSES = ("measured", "verified")
+Progress = Callable[[int, int], None]
+
+
+def _load(path: Path, schema: str, convert: Callable[[dict, f.Reporter], object]) -> tuple[object, list[Problem]]:
+    """(converted object, []) or (None, every problem in the file)."""
+    shown = str(path)
+    text, unreadable = read_text(path)
+    if unreadable:
+        return None, [Problem(shown, *unreadable[:2], "file", unreadable[2])]
+    try:
+        data = fast_load(text)
+        if is_valid_fast(schema, data):
+            return convert(data, f.Reporter(shown)), []
+    except NeedsCare:
+        pass
+    doc = careful_load(text)
+    report = f.Reporter(shown, doc)
+    report.problems.extend(Problem(shown, line, col, dotted(where), message) for where, line, col, message in doc.problems)
+    if doc.data is None:
+        return None, report.problems
+    for where, unknown_key, field, message in schema_problems(schema, doc.data):
+        if not unknown_key:
+            report.bad.append(where)
+        report(where, message, at_key=unknown_key, field=field)
+    result = None if report.blocked(()) else convert(doc.data, report)
+    return (None, report.problems) if report.problems else (result, [])
+
+
+def _convert_rules(data: dict, report: f.Reporter) -> model.ShopRules | None:
+    def get(key: str, *inner: str, range_key: str | None = None):
+        where = (key, *inner)
+        value = data.get(key)
+        for step in inner:
+            value = value.get(step) if isinstance(value, dict) else None
+        if value is None or not report.clean(where):
+            return None
+        return f.quantity(value, range_key or f"shop.{key}", report, where)
+
+    band = (get("effort_band", "low"), get("effort_band", "high"))
+    hoses = {hose: get("hose_expansion", hose) for hose in model.HOSE_KINDS}
+    if None not in band and band[0] >= band[1]:
+        report(("effort_band",), "low must be below high")
+    optional = {key: get(key) for key in ("line_bore", "max_pushrod_angle") if key in data}
+    values = dict(
+        effort_band=band,
+        min_travel_margin=get("min_travel_margin"),
+        latest_release_point=get("latest_release_point"),
+        default_efficiency=get("default_efficiency"),
+        hose_expansion=hoses,
+        fluid_bulk_modulus=get("fluid_bulk_modulus"),
+        **optional,
+    )
+    if report.problems or None in band or None in hoses.values() or None in values.values():
+        return None
+    return model.ShopRules(site_title=str(data["site_title"]), display_units=data["display_units"], **values)
+
+
+def _rules(root: Path) -> tuple[model.ShopRules | None, list[Problem]]:
+    return _load(root / "shop.yaml", "shop", _convert_rules)
+
+
+def load_rules(records_dir: str | os.PathLike) -> model.ShopRules:
+    """The shop rules from records/shop.yaml; InputError with every problem."""
+    rules, problems = _rules(Path(records_dir))
+    if problems:
+        raise InputError(problems)
+    return rules
+
+
+def _parts_converter(path: Path, taken: dict[str, str]) -> Callable[[dict, f.Reporter], list[model.Part]]:
+    """Converts one parts file; `taken` maps part ids already loaded to their file."""
+
+    def convert(data: dict, report: f.Reporter) -> list[model.Part]:
+        kind = data["kind"]
+        if kind != path.stem:
+            report(("kind",), f"kind {kind!r} must equal the file name {path.stem!r}")
+        section = f.SECTION_OF_KIND[kind]
+        here: dict[str, int] = {}
+        parts = []
+        for index, raw in enumerate(data["parts"]):
+            where = ("parts", index)
+            if report.blocked(where) or not isinstance(raw, dict):
+                continue
+            part_id = raw["id"]
+            if part_id in here or part_id in taken:
+                elsewhere = f"entry {here[part_id] + 1} of this file" if part_id in here else taken[part_id]
+                report(where + ("id",), f"part id {part_id!r} is already used by {elsewhere}; ids are unique across the catalogue")
+            here[part_id] = index
+            values = f.convert_fields(section, raw, report, where)
+            resolved = f.make_section(section, values, report, where)
+            if resolved is not None:
+                label = f.text(raw.get("label"))
+                parts.append(model.Part(kind=kind, id=part_id, label=label, section=resolved, path=str(path)))
+        return parts
+
+    return convert
+
+
+def _catalogue(root: Path) -> tuple[dict[str, dict[str, model.Part]], list[Problem]]:
+    catalogue: dict[str, dict[str, model.Part]] = {kind: {} for kind in model.PART_KINDS}
+    taken: dict[str, str] = {}
+    problems: list[Problem] = []
+    for path in _yaml_files(root / "parts"):
+        if path.stem not in model.PART_KINDS or path.parent != root / "parts":
+            known = ", ".join(f"{kind}.yaml" for kind in model.PART_KINDS)
+            problems.append(Problem(str(path), 0, 0, "file", f"not a catalogue file; the catalogue is {known} in {root / 'parts'}"))
+            continue
+        parts, found = _load(path, "parts", _parts_converter(path, taken))
+        problems += found
+        for part in parts or ():
+            catalogue[part.kind][part.id] = part
+            taken[part.id] = str(path)
+    return catalogue, problems
+
+
+def load_catalogue(records_dir: str | os.PathLike, rules: model.ShopRules | None = None) -> dict[str, dict[str, model.Part]]:
+    """kind -> id -> Part from records/parts/*.yaml; InputError with every problem.
+
+    `rules` is accepted for a uniform loader signature; the catalogue does not depend on it.
+    """
+    catalogue, problems = _catalogue(Path(records_dir))
+    if problems:
+        raise InputError(problems)
+    return catalogue
+
+
+def _find_part(catalogue: dict, section: str, part_id: str, report: f.Reporter, where: tuple) -> model.Part | None:
+    kind = f.CATALOGUE_KIND[section]
+    part = catalogue.get(kind, {}).get(part_id)
+    if part is not None:
+        return part
+    other = next((k for k, parts in catalogue.items() if part_id in parts), None)
+    ids = list(catalogue.get(kind, {}))
+    close = difflib.get_close_matches(part_id, ids, n=3, cutoff=0.4)
+    if other:
+        hint = f"; {part_id} is in {other}, not {kind}"
+    elif close:
+        hint = f"; nearest: {', '.join(close)}"
+    else:
+        hint = f"; the catalogue has {len(ids)} {kind}"
+    report(where, f"unknown part {part_id!r} in parts/{kind}.yaml{hint}")
+    return None
+
+
+def _build_converter(catalogue: dict, stem: str | None, shown: str) -> Callable[[dict, f.Reporter], model.Build | None]:
+    """Converts one build; `stem` is the file name the id must equal (None outside builds/)."""
+
+    def convert(data: dict, report: f.Reporter) -> model.Build | None:
+        sections = {name: _section(data, name, catalogue, report) for name in f.SECTION_FIELDS}
+        build_id = data.get("id")
+        if stem is not None and isinstance(build_id, str) and build_id != stem:
+            report(("id",), f"id {build_id!r} must equal the file name {stem!r}")
+        _check_combination(data, sections, report)
+        when = f.date(data.get("date"), report, ("date",))
+        needed = [name for name in f.SECTION_FIELDS if name not in ("fork", "measured")]
+        if report.problems or any(sections[name] is None for name in needed):
+            return None
+        return model.Build(
+            id=build_id, date=when, status=data["status"], technician=f.text(data.get("technician")),
+            vehicle=f.text(data.get("vehicle")), outcome=f.text(data.get("outcome")),
+            notes=f.text(data.get("notes")), path=shown, **sections,
+        )
+
+    return convert
+
+
+def _section(data: dict, name: str, catalogue: dict, report: f.Reporter):
+    raw = data.get(name)
+    where = (name,)
+    if not isinstance(raw, dict) or report.blocked(where):
+        return None
+    values = f.convert_fields(name, raw, report, where)
+    part_id = raw.get("part") if name in f.CATALOGUE_KIND else None
+    if part_id is not None:
+        part = _find_part(catalogue, name, part_id, report, where + ("part",))
+        if part is None:
+            return None
+        values = f.merge(f.section_fields(part.section), values)
+    return f.make_section(name, values, report, where, part_id)
+
+
+def _check_combination(data: dict, sections: dict, report: f.Reporter) -> None:
+    """Slave kind against fork and fork tip movement; status against the measured section."""
+    slave, gearbox = sections["slave"], sections["gearbox"]
+    if slave is not None and slave.kind == "concentric":
+        if "fork" in data:
+            report(("fork",), "a concentric slave works without a fork: remove this section", at_key=True)
+        if gearbox is not None and gearbox.fork_tip_moves != "none":
+            report(("gearbox", "fork_tip_moves"), "must be none with a concentric slave")
+    elif slave is not None:
+        if "fork" not in data:
+            report(("slave", "kind"), "an external slave works a fork: add a fork section "
+                   "(pivot_to_slave, pivot_to_bearing)", field="fork")
+        if gearbox is not None and gearbox.fork_tip_moves == "none":
+            report(("gearbox", "fork_tip_moves"), "an external slave moves the fork tip: forward or rearward")
+    status = data.get("status")
+    if status in _MEASURED_STATUSES and "measured" not in data:
+        report(("status",), f"status {status} needs a measured section (what the finished car showed); "
+               "use draft until it is measured")
+
+
+def _inside(path: Path, folder: Path) -> bool:
+    try:
+        path.resolve().relative_to(folder.resolve())
+    except ValueError:
+        return False
+    return True
+
+
+def _load_build(path: Path, catalogue: dict, in_builds: bool) -> tuple[model.Build | None, list[Problem]]:
+    """`in_builds`: the file sits under records/builds/, so its id must equal its name."""
+    return _load(path, "build", _build_converter(catalogue, path.stem if in_builds else None, str(path)))
+
+
+def load_build_file(path: str | os.PathLike, shop: model.Shop) -> model.Build:
+    """One build or proposal (it may live outside records/); InputError with every problem."""
+    path = Path(path)
+    build, problems = _load_build(path, shop.parts, _inside(path, Path(shop.root) / "builds"))
+    if problems:
+        raise InputError(problems)
+    return build
+
+
+def _yaml_files(folder: Path) -> list[Path]:
+    """YAML files under `folder` (subfolders too, hidden names skipped, links not followed), sorted."""
+    found = []
+    for directory, subfolders, names in os.walk(folder):
+        subfolders[:] = sorted(name for name in subfolders if not name.startswith("."))
+        found += [Path(directory, name) for name in sorted(names)
+                  if name.endswith(YAML_SUFFIXES) and not name.startswith(".")]
+    return found
+
+
+def _duplicate_ids(builds_dir: Path, checked: Iterable[Path]) -> list[Problem]:
+    """Build files in `checked` whose file name (= id) another file under builds_dir also has."""
+    first: dict[str, Path] = {}
+    for path in _yaml_files(builds_dir):
+        first.setdefault(path.stem, path)
+    problems = []
+    for path in checked:
+        original = first.get(path.stem)
+        if original is not None and original.resolve() != path.resolve():
+            line, col = _id_position(path)
+            problems.append(Problem(str(path), line, col, "id", f"build id {path.stem} is already used by "
+                                    f"{original}; ids must be unique across {builds_dir}"))
+    return problems
+
+
+def _id_position(path: Path) -> tuple[int, int]:
+    text, _ = read_text(path)
+    return careful_load(text).where(("id",)) if text else (0, 0)
+
+
+def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress | None,
+            all_in_builds: bool = False) -> tuple[list[model.Build], list[Problem]]:
+    """Load build files; `all_in_builds` when every path was found under records/builds/."""
+    builds, problems, in_builds = [], [], []
+    for done, path in enumerate(paths, 1):
+        inside = all_in_builds or _inside(path, root / "builds")
+        build, found = _load_build(path, catalogue, inside)
+        problems += found
+        if build is not None:
+            builds.append(build)
+        if inside:
+            in_builds.append(path)
+        if progress is not None:
+            progress(done, len(paths))
+    return builds, problems + _duplicate_ids(root / "builds", in_builds)
+
+
+def load_shop(records_dir: str | os.PathLike, progress: Progress | None = None) -> model.Shop:
+    """Rules, catalogue and every build under records/builds/**; InputError with every problem.
+
+    `progress(done, total)` is called after each build file.
+    """
+    root = Path(records_dir)
+    rules, problems = _rules(root)
+    catalogue, found = _catalogue(root)
+    builds, found_in_builds = _builds(root, catalogue, _yaml_files(root / "builds"), progress, all_in_builds=True)
+    problems += found + found_in_builds
+    if problems:
+        raise InputError(problems)
+    return model.Shop(root=str(root), rules=rules, parts=catalogue, builds=tuple(sorted(builds, key=lambda b: b.id)))
+
+
+def validate_paths(records_dir: str | os.PathLike, paths: Iterable[str | os.PathLike] = (),
+                   progress: Progress | None = None) -> list[Problem]:
+    """Every problem in the given files or folders (all of records_dir when none), sorted.
+
+    `progress(done, total)` is called after each build file.
+    """
+    root = Path(records_dir)
+    paths = list(paths)
+    targets: list[Path] = []
+    problems: list[Problem] = []
+    for given in map(Path, paths):
+        if given.is_dir():
+            targets += _yaml_files(given)
+        elif given.exists():
+            targets.append(given)
+        else:
+            problems.append(Problem(str(given), 0, 0, "file", "no such file or folder"))
+    if not paths:
+        targets = [root / "shop.yaml", *_yaml_files(root / "parts"), *_yaml_files(root / "builds")]
+    shop_file = (root / "shop.yaml").resolve()
+    if any(path.resolve() == shop_file for path in targets):
+        problems += _rules(root)[1]
+    catalogue, found = _catalogue(root)
+    build_paths = [path for path in targets if path.resolve() != shop_file and not _inside(path, root / "parts")]
+    if found and (build_paths or any(_inside(path, root / "parts") for path in targets)):
+        problems += found
+    problems += _builds(root, catalogue, build_paths, progress)[1]
+    return sorted(set(problems), key=lambda p: (p.path, p.line, p.col, p.field))

@@ -1,0 +1,257 @@
+"""Reading YAML records safely: a fast libyaml load, and a careful load that locates problems.
+
+The fast load is tried first; anything unusual (a parse error, an anchor or alias, a duplicate
+key) sends the file to the careful load, which composes nodes (line and column of every
+value), checks aliases and duplicates, and returns located problems instead of raising.
+"""
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import yaml
+
+MAX_BYTES = 256 * 1024  # a record is a few kilobytes
+MAX_FLOW_DEPTH = 64  # [ and { nesting; libyaml recurses in C and can crash on deep input
+MAX_ALIASES = 64
+MAX_NODES = 10_000  # nodes after expanding aliases
+
+Where = tuple  # a location in a document: keys and list indices, e.g. ("pedal", "layout", "pad", 0)
+
+_BRACKETS = re.compile(r"[\[\]{}]")
+_COMPACT_RUN = re.compile(r"(?:[-?][ \t]+){32}")  # "- - - - ..." nests one level per marker
+_COMPACT_PAIR = re.compile(r"[-?][ \t]+[-?][ \t]")  # cheap test before _COMPACT_RUN
+_TIMESTAMP = "tag:yaml.org,2002:timestamp"
+_MERGE = "tag:yaml.org,2002:merge"
+
+
+class Loader(yaml.CSafeLoader):
+    """libyaml safe loader; dates stay strings (the records code parses and locates them).
+
+    Plain scalars repeat across records (`7/8 in`, `DOT 4`), so their resolved tags are cached.
+    """
+
+    _tags: dict[str, str] = {}
+
+    def resolve(self, kind, value, implicit):
+        if kind is yaml.ScalarNode and implicit[0]:
+            tag = self._tags.get(value)
+            if tag is None:
+                if len(self._tags) >= 10_000:
+                    self._tags.clear()
+                tag = self._tags[value] = super().resolve(kind, value, implicit)
+            return tag
+        return super().resolve(kind, value, implicit)
+
+
+Loader.yaml_implicit_resolvers = {
+    first: [(tag, regexp) for tag, regexp in resolvers if tag != _TIMESTAMP]
+    for first, resolvers in yaml.CSafeLoader.yaml_implicit_resolvers.items()
+}
+_SCALARS = yaml.constructor.SafeConstructor()
+_STR = "tag:yaml.org,2002:str"
+_BUILD_SCALAR = {
+    "tag:yaml.org,2002:null": lambda node: None,
+    "tag:yaml.org,2002:bool": _SCALARS.construct_yaml_bool,
+    "tag:yaml.org,2002:int": _SCALARS.construct_yaml_int,
+    "tag:yaml.org,2002:float": _SCALARS.construct_yaml_float,
+}
+
+
+def _plain(node) -> object:
+    """Plain data from a node tree: str, int, float, bool, None, dict, list; NeedsCare otherwise."""
+    kind = node.__class__
+    if kind is yaml.ScalarNode:
+        if node.tag == _STR:
+            return node.value
+        build = _BUILD_SCALAR.get(node.tag)
+        if build is None:
+            raise NeedsCare
+        return build(node)
+    if kind is yaml.MappingNode:
+        mapping = {_plain(key): _plain(value) for key, value in node.value}
+        if len(mapping) != len(node.value) or node.tag != "tag:yaml.org,2002:map":
+            raise NeedsCare  # duplicate or merge keys, or an explicit tag
+        return mapping
+    if node.tag != "tag:yaml.org,2002:seq":
+        raise NeedsCare
+    return [_plain(item) for item in node.value]
+
+
+class NeedsCare(Exception):
+    """The fast path met something it does not report on; use the careful path."""
+
+
+@dataclass
+class Located:
+    """A carefully loaded document: data, value and key positions (1-based), problems."""
+
+    data: object = None
+    values: dict[Where, tuple[int, int]] = field(default_factory=dict)
+    keys: dict[Where, tuple[int, int]] = field(default_factory=dict)
+    problems: list[tuple[Where, int, int, str]] = field(default_factory=list)  # (where, line, col, message)
+
+    def where(self, path: Where, at_key: bool = False) -> tuple[int, int]:
+        """Position of `path` (its key when `at_key`), else of its nearest located parent."""
+        if at_key and path in self.keys:
+            return self.keys[path]
+        while path not in self.values and path:
+            path = path[:-1]
+        return self.values.get(path, (1, 1))
+
+
+def read_text(path: Path) -> tuple[str | None, tuple[int, int, str] | None]:
+    """The file's text, or (None, (line, col, message)) for a file we will not parse."""
+    try:
+        if not path.is_file():
+            return None, (0, 0, "not a regular file" if path.exists() else "no such file")
+        size = path.stat().st_size
+        if size > MAX_BYTES:
+            return None, (0, 0, f"file is {size} bytes; records are limited to {MAX_BYTES} bytes")
+        raw = path.read_bytes()[: MAX_BYTES + 1]
+    except OSError as error:
+        return None, (0, 0, f"cannot read: {error.strerror or error}")
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as error:
+        line = raw.count(b"\n", 0, error.start) + 1
+        col = error.start - (raw.rfind(b"\n", 0, error.start) + 1) + 1
+        return None, (line, col, f"not UTF-8 text (byte 0x{raw[error.start]:02x}); save the file as UTF-8")
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    if not text.strip():
+        return None, (1, 1, "empty file")
+    return text, None
+
+
+def _nesting_problem(text: str) -> tuple[int, int, str] | None:
+    if _COMPACT_PAIR.search(text):
+        run = _COMPACT_RUN.search(text)
+        if run:
+            return (*_line_col(text, run.start()), "nesting is too deep")
+    if text.count("[") + text.count("{") <= MAX_FLOW_DEPTH:
+        return None
+    depth = 0
+    for bracket in _BRACKETS.finditer(text):
+        depth += 1 if bracket.group() in "[{" else -1
+        if depth > MAX_FLOW_DEPTH:
+            return (*_line_col(text, bracket.start()), f"nesting is deeper than {MAX_FLOW_DEPTH} levels")
+    return None
+
+
+def _line_col(text: str, offset: int) -> tuple[int, int]:
+    return text.count("\n", 0, offset) + 1, offset - (text.rfind("\n", 0, offset) + 1) + 1
+
+
+def fast_load(text: str) -> object:
+    """Plain data from libyaml; NeedsCare for anything the careful path must look at."""
+    if "&" in text or "*" in text or _nesting_problem(text) is not None:
+        raise NeedsCare
+    loader = Loader(text)
+    try:
+        return _plain(loader.get_single_node())
+    except NeedsCare:
+        raise
+    except Exception as error:  # any parse or construction failure: report it carefully
+        raise NeedsCare from error
+    finally:
+        loader.dispose()
+
+
+def careful_load(text: str) -> Located:
+    """Compose nodes, check aliases and duplicate keys, construct data; problems located."""
+    doc = Located()
+    nesting = _nesting_problem(text)
+    if nesting:
+        doc.problems.append(((), *nesting))
+        return doc
+    loader = Loader(text)
+    try:
+        root = loader.get_single_node()
+        if root is None:
+            doc.problems.append(((), 1, 1, "the file holds no YAML document"))
+            return doc
+        doc.problems.extend(_graph_problems(root))
+        if not doc.problems:
+            _index(root, doc)
+            doc.data = loader.construct_document(root)
+    except yaml.MarkedYAMLError as error:
+        mark = error.problem_mark or error.context_mark
+        message = " ".join(filter(None, [error.context, error.problem]))
+        line_col = (mark.line + 1, mark.column + 1) if mark else (1, 1)
+        doc.problems.append(((), *line_col, f"YAML: {message}"))
+    except yaml.YAMLError as error:
+        position = getattr(error, "position", None)
+        line_col = _line_col(text, position) if isinstance(position, int) else (1, 1)
+        doc.problems.append(((), *line_col, f"YAML: {error}"))
+    except (ValueError, TypeError, OverflowError) as error:  # a scalar libyaml accepted but Python cannot build
+        doc.problems.append(((), 1, 1, f"YAML: {error}"))
+    finally:
+        loader.dispose()
+    return doc
+
+
+def _children(node) -> list:
+    if isinstance(node, yaml.MappingNode):
+        return [item for pair in node.value for item in pair]
+    if isinstance(node, yaml.SequenceNode):
+        return list(node.value)
+    return []
+
+
+def _mark(node) -> tuple[int, int]:
+    return node.start_mark.line + 1, node.start_mark.column + 1
+
+
+def _graph_problems(root) -> list[tuple[Where, int, int, str]]:
+    """Aliases beyond MAX_ALIASES, expansion beyond MAX_NODES, or a node containing itself."""
+    sizes: dict[int, int] = {}
+    open_nodes: set[int] = set()
+    aliases = 0
+    stack = [(root, False)]
+    while stack:
+        node, finished = stack.pop()
+        key = id(node)
+        if finished:
+            open_nodes.discard(key)
+            sizes[key] = 1 + sum(sizes[id(child)] for child in _children(node))
+            if sizes[key] > MAX_NODES:
+                return [((), *_mark(node), f"expands to more than {MAX_NODES} values through anchors and aliases")]
+            continue
+        if key in sizes:
+            aliases += 1
+            if aliases > MAX_ALIASES:
+                return [((), *_mark(node), f"more than {MAX_ALIASES} aliases; write the values out")]
+            continue
+        if key in open_nodes:
+            return [((), *_mark(node), "an alias refers to a value that contains it")]
+        open_nodes.add(key)
+        stack.append((node, True))
+        stack.extend((child, False) for child in _children(node))
+    return []
+
+
+def _index(root, doc: Located) -> None:
+    """Record value and key positions by path; report duplicate keys."""
+    stack = [((), root)]
+    while stack:
+        path, node = stack.pop()
+        doc.values.setdefault(path, _mark(node))
+        if isinstance(node, yaml.SequenceNode):
+            stack.extend((path + (index,), child) for index, child in enumerate(node.value))
+        elif isinstance(node, yaml.MappingNode):
+            first_seen: dict[str, int] = {}
+            for key_node, value_node in node.value:
+                if key_node.tag == _MERGE or not isinstance(key_node, yaml.ScalarNode):
+                    continue
+                name = key_node.value
+                line, col = _mark(key_node)
+                if name in first_seen:
+                    doc.problems.append((path + (name,), line, col, f"duplicate key {name!r} (first at line {first_seen[name]})"))
+                    continue
+                first_seen[name] = line
+                doc.keys[path + (name,)] = (line, col)
+                if not isinstance(value_node, yaml.ScalarNode):  # a section is shown at its key
+                    doc.values[path + (name,)] = (line, col)
+                stack.append((path + (name,), value_node))

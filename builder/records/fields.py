@@ -1,0 +1,245 @@
+"""Record fields: their dimensions, plausible ranges, and conversion to builder.model sections.
+
+PLAUSIBLE is the table of accepted ranges, keyed by field path. The ranges are sanity limits
+for passenger-car and light-truck clutch hydraulics (common practice, no source): they catch
+typing slips such as `75 in` for a bore, `0 in` or a value in the wrong unit, not bad designs.
+"""
+from __future__ import annotations
+
+import dataclasses
+import datetime as _dt
+
+from builder import model
+from builder.problems import Problem
+from builder.records._schema import dotted
+from builder.records._yaml import Located, NeedsCare
+from builder.units import QuantityError, check_range, parse_quantity
+
+# field path -> (dimension, lowest, highest); a negative lowest allows negative values
+_RANGES: dict[str, tuple[str, str, str]] = {
+    "clutch.release_load": ("force", "100 N", "20 kN"),
+    "clutch.release_travel": ("length", "1 mm", "30 mm"),
+    "clutch.clearance": ("length", "0 mm", "20 mm"),
+    "clutch.load_curve.travel": ("length", "0 mm", "60 mm"),
+    "clutch.load_curve.load": ("force", "0 N", "20 kN"),
+    "fork.pivot_to_slave": ("length", "10 mm", "600 mm"),
+    "fork.pivot_to_bearing": ("length", "10 mm", "600 mm"),
+    "master.bore": ("length", "3 mm", "60 mm"),
+    "master.stroke": ("length", "3 mm", "100 mm"),
+    "master.rated_pressure": ("pressure", "0.5 MPa", "50 MPa"),
+    "slave.bore": ("length", "3 mm", "100 mm"),
+    "slave.piston_area": ("area", "10 mm^2", "10000 mm^2"),
+    "slave.stroke": ("length", "3 mm", "100 mm"),
+    "slave.rated_pressure": ("pressure", "0.5 MPa", "50 MPa"),
+    "line.length": ("length", "50 mm", "10 m"),
+    "pedal.pivot_to_pad": ("length", "50 mm", "1000 mm"),
+    "pedal.pivot_to_clevis": ("length", "5 mm", "300 mm"),
+    "pedal.pad_travel": ("length", "10 mm", "400 mm"),
+    "pedal.layout.point": ("length", "-2 m", "2 m"),
+    "pedal.layout.rotation_to_stop": ("angle", "1 deg", "90 deg"),
+    "measured.pedal_effort": ("force", "5 N", "2 kN"),
+    "measured.slave_travel": ("length", "0 mm", "100 mm"),
+    "measured.pad_travel_to_release": ("length", "0 mm", "400 mm"),
+    "measured.floor_gap": ("length", "0 mm", "400 mm"),
+    "shop.effort_band": ("force", "10 N", "1 kN"),
+    "shop.min_travel_margin": ("fraction", "0 %", "100 %"),
+    "shop.latest_release_point": ("fraction", "10 %", "100 %"),
+    "shop.default_efficiency": ("fraction", "10 %", "100 %"),
+    "shop.hose_expansion": ("hose_expansion", "0 mL/m/MPa", "10 mL/m/MPa"),
+    "shop.fluid_bulk_modulus": ("pressure", "0.1 GPa", "10 GPa"),
+    "shop.line_bore": ("length", "1 mm", "20 mm"),
+    "shop.max_pushrod_angle": ("angle", "0.5 deg", "45 deg"),
+}
+PLAUSIBLE: dict[str, tuple[str, float, float]] = {
+    key: (dimension, parse_quantity(low, dimension, signed=True), parse_quantity(high, dimension))
+    for key, (dimension, low, high) in _RANGES.items()
+}
+
+
+
+class Reporter:
+    """Collects located problems for one file; on the fast path (no positions) it raises NeedsCare.
+
+    `bad` holds the paths the schema already reported; conversion skips them, and a later
+    problem for a field that already has one is dropped, so each mistake is said once.
+    """
+
+    def __init__(self, path: str, doc: Located | None = None):
+        self.path = path
+        self.doc = doc
+        self.problems: list[Problem] = []
+        self.bad: list[tuple] = []
+
+    def __call__(self, where: tuple, message: str, *, at_key: bool = False, field: str | None = None) -> None:
+        if self.doc is None:
+            raise NeedsCare
+        field = field or dotted(where)
+        if any(problem.field == field for problem in self.problems):
+            return
+        line, col = self.doc.where(where, at_key)
+        self.problems.append(Problem(self.path, line, col, field, message))
+
+    def blocked(self, where: tuple) -> bool:
+        """A schema problem sits at `where` or above it."""
+        return any(where[: len(bad)] == bad for bad in self.bad)
+
+    def clean(self, where: tuple) -> bool:
+        """No schema problem at, above or below `where`."""
+        return not any(where[: len(bad)] == bad or bad[: len(where)] == where for bad in self.bad)
+
+
+TEXT, CHOICE, QUANTITY, CURVE, LAYOUT = "text", "choice", "quantity", "curve", "layout"
+SECTION_FIELDS: dict[str, dict[str, str]] = {
+    "gearbox": {"family": TEXT, "variant": TEXT, "fork_tip_moves": CHOICE},
+    "clutch": {"release_load": QUANTITY, "release_travel": QUANTITY, "clearance": QUANTITY, "load_curve": CURVE},
+    "fork": {"pivot_to_slave": QUANTITY, "pivot_to_bearing": QUANTITY},
+    "master": {"bore": QUANTITY, "stroke": QUANTITY, "rated_pressure": QUANTITY},
+    "slave": {"kind": CHOICE, "bore": QUANTITY, "piston_area": QUANTITY, "stroke": QUANTITY,
+              "rated_pressure": QUANTITY, "bracket": TEXT},
+    "line": {"length": QUANTITY, "hose": CHOICE, "fluid": CHOICE},
+    "pedal": {"pivot_to_pad": QUANTITY, "pivot_to_clevis": QUANTITY, "pad_travel": QUANTITY,
+              "pushrod": TEXT, "layout": LAYOUT},
+    "measured": {"pedal_effort": QUANTITY, "slave_travel": QUANTITY, "pad_travel_to_release": QUANTITY,
+                 "floor_gap": QUANTITY, "method": TEXT},
+}
+SECTION_CLASS = {
+    "gearbox": model.Gearbox, "clutch": model.Clutch, "fork": model.Fork, "master": model.Master,
+    "slave": model.Slave, "line": model.Line, "pedal": model.Pedal, "measured": model.Measured,
+}
+_CLASS_FIELDS = {name: tuple(f.name for f in dataclasses.fields(cls)) for name, cls in SECTION_CLASS.items()}
+CATALOGUE_KIND = {"gearbox": "gearboxes", "clutch": "clutches", "master": "masters", "slave": "slaves",
+                  "pedal": "pedals"}
+SECTION_OF_KIND = {kind: section for section, kind in CATALOGUE_KIND.items()}
+_REQUIRED = {
+    "gearbox": ("family", "fork_tip_moves"),
+    "clutch": ("release_load", "release_travel", "clearance"),
+    "fork": ("pivot_to_slave", "pivot_to_bearing"),
+    "master": ("bore", "stroke"),
+    "slave": ("kind", "stroke"),
+    "line": ("length", "hose", "fluid"),
+    "pedal": ("pad_travel",),
+    "measured": (),
+}
+_ALTERNATIVES = {"bore": "piston_area", "piston_area": "bore"}  # a slave gives one of the two
+_LAYOUT_POINTS = ("pivot", "pad", "clevis", "pushrod_seat")
+
+
+def quantity(value: object, key: str, report: Reporter, where: tuple) -> float | None:
+    """Convert one quantity for field path `key` (a PLAUSIBLE key); report and return None if bad."""
+    dimension, low, high = PLAUSIBLE[key]
+    try:
+        result = parse_quantity(value, dimension, signed=low < 0)
+        check_range(result, low, high, dimension, value)
+    except QuantityError as error:
+        report(where, str(error))
+        return None
+    return result
+
+
+def text(value: object) -> str | None:
+    """Free text; an unquoted YAML number such as a family code 2002 becomes "2002"."""
+    return None if value is None else str(value)
+
+
+def date(value: object, report: Reporter, where: tuple) -> _dt.date | None:
+    """A YYYY-MM-DD string (or a date object from another YAML loader) as a date."""
+    if value is None or (isinstance(value, _dt.date) and not isinstance(value, _dt.datetime)):
+        return value
+    try:
+        return _dt.date.fromisoformat(str(value))
+    except ValueError:
+        report(where, f"{value!r} is not a calendar date; write YYYY-MM-DD, e.g. 2025-03-14")
+        return None
+
+
+def convert_fields(section: str, raw: dict, report: Reporter, where: tuple) -> dict:
+    """The section's given fields in SI (missing ones absent); `part` and unknown keys skipped."""
+    fields = {}
+    for key, value in raw.items():
+        kind = SECTION_FIELDS[section].get(key)
+        at = where + (key,)
+        if kind is None or not report.clean(at):
+            continue
+        if kind == QUANTITY:
+            fields[key] = quantity(value, f"{section}.{key}", report, at)
+        elif kind == TEXT:
+            fields[key] = text(value)
+        elif kind == CHOICE:
+            fields[key] = value
+        elif kind == CURVE:
+            fields[key] = _load_curve(value, report, at)
+        else:
+            fields[key] = _layout(value, report, at)
+    return fields
+
+
+def merge(part_fields: dict, overrides: dict) -> dict:
+    """Part fields, then the build's: a slave bore replaces a part's piston_area and vice versa."""
+    merged = dict(part_fields)
+    for key in overrides:
+        merged.pop(_ALTERNATIVES.get(key, ""), None)
+    merged.update(overrides)
+    return merged
+
+
+def section_fields(section: object) -> dict:
+    """The given (not None) fields of a resolved section, without `part`: used for merging."""
+    return {
+        f.name: getattr(section, f.name)
+        for f in dataclasses.fields(section)
+        if f.name != "part" and getattr(section, f.name) is not None
+    }
+
+
+def make_section(name: str, fields: dict, report: Reporter, where: tuple, part: str | None = None):
+    """The model section from converted fields, or None after reporting what is missing."""
+    hint = " (here or in the catalogue part)" if part else ""
+    missing = [key for key in _REQUIRED[name] if key not in fields]
+    if name == "slave" and "bore" not in fields and "piston_area" not in fields:
+        missing.append("bore or piston_area")
+    if name == "slave" and "bore" in fields and "piston_area" in fields:
+        report(where, "give either bore or piston_area, not both")
+        return None
+    if name == "pedal" and "layout" not in fields:
+        missing += [key for key in ("pivot_to_pad", "pivot_to_clevis") if key not in fields]
+    for key in missing:
+        report(where, f"missing key {key!r}{hint}", field=dotted(where + (key,)))
+    if missing or any(value is None for key, value in fields.items() if SECTION_FIELDS[name][key] != TEXT):
+        return None
+    values = {key: fields.get(key) for key in _CLASS_FIELDS[name]}
+    if "part" in values:
+        values["part"] = part
+    return SECTION_CLASS[name](**values)
+
+
+def _load_curve(raw: list, report: Reporter, where: tuple) -> tuple | None:
+    points = []
+    for index, (travel, load) in enumerate(raw):
+        at = where + (index,)
+        point = (
+            quantity(travel, "clutch.load_curve.travel", report, at + (0,)),
+            quantity(load, "clutch.load_curve.load", report, at + (1,)),
+        )
+        if None in point:
+            return None
+        if points and point[0] <= points[-1][0]:
+            report(at, "bearing travel must increase from one point to the next")
+            return None
+        points.append(point)
+    return tuple(points)
+
+
+def _layout(raw: dict, report: Reporter, where: tuple) -> model.PedalLayout | None:
+    values = {}
+    for name in _LAYOUT_POINTS:
+        x, y = raw[name]
+        at = where + (name,)
+        values[name] = (
+            quantity(x, "pedal.layout.point", report, at + (0,)),
+            quantity(y, "pedal.layout.point", report, at + (1,)),
+        )
+    rotation = quantity(raw["rotation_to_stop"], "pedal.layout.rotation_to_stop", report,
+                        where + ("rotation_to_stop",))
+    if rotation is None or any(None in point for point in values.values()):
+        return None
+    return model.PedalLayout(rotation_to_stop=rotation, **values)

@@ -1,0 +1,190 @@
+"""Site build stages: sources -> docs dir (Markdown + SVG) -> mkdocs (strict) -> swap into place.
+
+The published directory changes only when the whole build succeeded: mkdocs writes into a
+temporary sibling of `out_dir`, which then replaces it by rename. A failed build removes its
+temporary files and leaves the last good site exactly as it was.
+"""
+from __future__ import annotations
+
+import logging
+import os
+import shutil
+import tempfile
+import uuid
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any
+
+from builder.site.escape import plain
+from builder.site.pages import generated_pages, method_appendix
+
+PACKAGED_SITE_SRC = Path(__file__).resolve().parents[2] / "site_src"
+MARKER = ".fitment-site"  # written into every site we build; only such a folder is replaced
+CONFIG = "mkdocs.yml"
+THEME_DIR = "overrides"
+
+Progress = Callable[[str, int, int], None]  # (stage, done, total)
+
+
+class SiteBuildError(Exception):
+    """The site could not be built; the published folder was left untouched."""
+
+    def __init__(self, message: str, details: list[str] | None = None):
+        self.details = list(details or [])
+        super().__init__("\n".join([message, *self.details]))
+
+
+def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.PathLike | None = None,
+               progress: Progress | None = None) -> None:
+    """Build the published site for `analysis` into `out_dir`.
+
+    site_src: a folder whose files override the packaged defaults file by file; None uses
+    the `site_src/` beside the shop's records folder when there is one. progress, when
+    given, is called as progress(stage, done, total) for the stages "pages", "mkdocs" and
+    "publish". Raises SiteBuildError (out_dir untouched) when the build fails.
+    """
+    out = Path(out_dir).resolve()
+    check_replaceable(out)
+    layers = source_layers(analysis, site_src)
+    out.parent.mkdir(parents=True, exist_ok=True)
+    with tempfile.TemporaryDirectory(prefix="fitment-docs-") as work_name:
+        work = Path(work_name)
+        docs = write_sources(layers, work)
+        write_generated(analysis, docs, progress)
+        new = Path(tempfile.mkdtemp(prefix=f".{out.name}.new-", dir=out.parent))
+        try:
+            run_mkdocs(work / CONFIG, docs, new, analysis.shop.rules.site_title, progress)
+            (new / MARKER).write_text("Built by fitment; `fitment site build` replaces this folder.\n")
+            _tick(progress, "publish", 0, 1)
+            swap_into_place(new, out)
+            _tick(progress, "publish", 1, 1)
+        finally:
+            shutil.rmtree(new, ignore_errors=True)
+
+
+def check_replaceable(out: Path) -> None:
+    """Refuse to replace anything but an empty folder or a site this tool built."""
+    if not out.exists():
+        return
+    if not out.is_dir():
+        raise SiteBuildError(f"{out}: exists and is not a folder; not replacing it")
+    if any(out.iterdir()) and not (out / MARKER).exists():
+        raise SiteBuildError(f"{out}: folder is not empty and was not built by fitment; "
+                             "not replacing it (choose another --out)")
+
+
+def source_layers(analysis: Any, site_src: str | os.PathLike | None) -> list[Path]:
+    """Folders of site sources, later ones overriding earlier ones file by file."""
+    layers = [PACKAGED_SITE_SRC]
+    if site_src is not None:
+        extra = Path(site_src)
+        if not extra.is_dir():
+            raise SiteBuildError(f"{extra}: site sources folder not found")
+        layers.append(extra)
+    else:
+        beside = Path(analysis.shop.root).resolve().parent / "site_src"
+        if beside.is_dir():
+            layers.append(beside)
+    unique: list[Path] = []
+    for layer in layers:
+        if layer.resolve() not in [u.resolve() for u in unique]:
+            unique.append(layer)
+    return unique
+
+
+def write_sources(layers: list[Path], work: Path) -> Path:
+    """Copy the layered sources: mkdocs.yml and overrides/ into work, the rest into work/docs."""
+    docs = work / "docs"
+    docs.mkdir()
+    for layer in layers:
+        for path in sorted(layer.rglob("*")):
+            relative = path.relative_to(layer)
+            if path.is_dir() or any(p.startswith(".") or p == "__pycache__" for p in relative.parts):
+                continue
+            top = relative.parts[0]
+            target = work / relative if top in (CONFIG, THEME_DIR) else docs / relative
+            target.parent.mkdir(parents=True, exist_ok=True)
+            shutil.copyfile(path, target)
+    if not (work / CONFIG).exists():
+        raise SiteBuildError(f"no {CONFIG} in the site sources ({', '.join(map(str, layers))})")
+    return docs
+
+
+def write_generated(analysis: Any, docs: Path, progress: Progress | None) -> None:
+    """Generated pages and pictures go over the sources; the method page gets the
+    similarity section from the history module."""
+    made: set[Path] = set()
+    for relative, text in generated_pages(analysis, lambda i, n: _tick(progress, "pages", i, n)):
+        target = docs / relative
+        if target.parent not in made:
+            target.parent.mkdir(parents=True, exist_ok=True)
+            made.add(target.parent)
+        target.write_text(text, encoding="utf-8")
+    method = docs / "method.md"
+    if method.exists():
+        from builder.history import distance_description
+
+        with method.open("a", encoding="utf-8") as handle:
+            handle.write(method_appendix(distance_description()))
+
+
+class _Collect(logging.Handler):
+    def __init__(self) -> None:
+        super().__init__(logging.WARNING)
+        self.messages: list[str] = []
+
+    def emit(self, record: logging.LogRecord) -> None:
+        self.messages.append(f"{record.levelname.lower()}: {record.getMessage()}")
+
+
+def run_mkdocs(config_file: Path, docs: Path, site_dir: Path, site_name: str | None,
+               progress: Progress | None) -> None:
+    """mkdocs build in strict mode; any warning or error becomes a SiteBuildError."""
+    from mkdocs.commands.build import build
+    from mkdocs.config import load_config
+    from mkdocs.exceptions import Abort, MkDocsException
+
+    _tick(progress, "mkdocs", 0, 1)
+    logger = logging.getLogger("mkdocs")
+    collect, propagate = _Collect(), logger.propagate
+    logger.addHandler(collect)
+    logger.propagate = False  # keep mkdocs' own chatter off the terminal; errors come back to us
+    try:
+        overrides = {"site_name": plain(site_name)} if site_name and plain(site_name) else {}
+        config = load_config(config_file=str(config_file), docs_dir=str(docs),
+                             site_dir=str(site_dir), strict=True, **overrides)
+        config.plugins.on_startup(command="build", dirty=False)
+        try:
+            build(config)
+        finally:
+            config.plugins.on_shutdown()
+    except (Abort, MkDocsException) as error:
+        raise SiteBuildError(f"site build failed: {error}", collect.messages) from None
+    finally:
+        logger.removeHandler(collect)
+        logger.propagate = propagate
+    _tick(progress, "mkdocs", 1, 1)
+
+
+def swap_into_place(new: Path, out: Path) -> None:
+    """Rename the old site away, the new one into place, then delete the old one."""
+    mask = os.umask(0)
+    os.umask(mask)
+    new.chmod(0o777 & ~mask)  # mkdtemp made it private; a published site is readable
+    old = out.parent / f".{out.name}.old-{uuid.uuid4().hex[:8]}"
+    had_old = out.exists()
+    if had_old:
+        os.rename(out, old)
+    try:
+        os.rename(new, out)
+    except OSError:
+        if had_old:
+            os.rename(old, out)
+        raise
+    if had_old:
+        shutil.rmtree(old, ignore_errors=True)
+
+
+def _tick(progress: Progress | None, stage: str, done: int, total: int) -> None:
+    if progress is not None:
+        progress(stage, done, total)

@@ -1,0 +1,665 @@
+"""Markdown and SVG for every generated page, from an Analysis. No mkdocs here.
+
+`generated_pages(analysis)` yields (relative path, text) pairs for the docs dir. Record text
+goes through `escape.md` (Markdown) or `escape.xml` (SVG) and nowhere else; links are built
+only from `slug()` of ids, never from record text. Physics is read from the Analysis,
+never recomputed.
+"""
+from __future__ import annotations
+
+import dataclasses
+import datetime as _dt
+import math
+import re
+import statistics
+from collections import defaultdict
+from collections.abc import Callable, Iterator, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+from builder import units
+from builder.model import Build, Part, ShopRules
+from builder.site import svg
+from builder.site.escape import front_matter_title, md, md_paragraphs
+
+STATUS_COLORS = {"verified": "#2e7d32", "measured": "#1565c0", "rejected": "#c62828",
+                 "draft": "#757575"}
+STATUS_WORDS = {"verified": "verified", "measured": "measured, not yet verified",
+                "rejected": "rejected (failed)", "draft": "draft (not built)"}
+FORK_WORDS = {"forward": "fork tip moves forward", "rearward": "fork tip moves rearward",
+              "none": "concentric slave (no fork)"}
+# part kind -> (Build attribute, singular title)
+PART_KINDS = {"gearboxes": ("gearbox", "Gearbox"), "clutches": ("clutch", "Clutch"),
+              "masters": ("master", "Master cylinder"), "slaves": ("slave", "Slave cylinder"),
+              "pedals": ("pedal", "Pedal assembly")}
+# record field -> dimension for units.show; fields not listed are text
+FIELD_DIMENSIONS = {
+    "release_load": "force", "release_travel": "length", "clearance": "length",
+    "pivot_to_slave": "length", "pivot_to_bearing": "length", "bore": "length",
+    "stroke": "length", "rated_pressure": "pressure", "piston_area": "area",
+    "length": "length", "pivot_to_pad": "length", "pivot_to_clevis": "length",
+    "pad_travel": "length", "rotation_to_stop": "angle", "pedal_effort": "force",
+    "slave_travel": "length", "pad_travel_to_release": "length", "floor_gap": "length",
+}
+FIELD_WORDS = {"fork_tip_moves": "fork tip moves", "pivot_to_slave": "pivot to slave",
+               "pivot_to_bearing": "pivot to bearing", "pivot_to_pad": "pivot to pad",
+               "pivot_to_clevis": "pivot to clevis", "pushrod_seat": "pushrod seat",
+               "rotation_to_stop": "rotation to stop", "pad_travel_to_release":
+               "pad travel to release", "load_curve": "load curve (bearing travel, load)"}
+CHART_UNITS = {"imperial": {"force": "lbf", "length": "in"}, "metric": {"force": "N", "length": "mm"}}
+LATEST = 10
+NONE = "\u2014"
+_SLUG_BAD = re.compile(r"[^A-Za-z0-9._-]+")
+
+
+def slug(identifier: str) -> str:
+    """A file-name-safe form of an id; ids that had to change get a short checksum."""
+    clean = _SLUG_BAD.sub("-", identifier).strip(".-") or "id"
+    if clean == identifier:
+        return clean
+    return f"{clean}-{sum(identifier.encode()) % 9973:04d}"
+
+
+# Where a page lives ("" top level, "builds", "parts" index, "part" page) -> path to the root.
+ROOT = {"": "", "builds": "../", "parts": "../", "part": "../../"}
+
+
+def build_link(build_id: str, where: str) -> str:
+    return f"[{md(build_id)}]({ROOT[where]}builds/{slug(build_id)}.md)"
+
+
+def part_link(kind: str, part_id: str, where: str) -> str:
+    return f"[{md(part_id)}]({ROOT[where]}parts/{kind}/{slug(part_id)}.md)"
+
+
+# --- display helpers --------------------------------------------------------------------
+
+class Display:
+    """Quantities in both unit systems, the shop's primary first; Markdown-escaped."""
+
+    def __init__(self, rules: ShopRules):
+        self.primary = rules.display_units if rules.display_units in units.SYSTEMS else "imperial"
+        self.chart = CHART_UNITS[self.primary]
+        self._per_unit = {dim: units.parse_quantity(f"1 {name}", dim)
+                          for dim, name in self.chart.items()}
+
+    def q(self, value: float | None, dimension: str) -> str:
+        return NONE if value is None else md(units.show(value, dimension, self.primary))
+
+    def chart_value(self, value_si: float, dimension: str) -> float:
+        return value_si / self._per_unit[dimension]
+
+    def chart_label(self, words: str, dimension: str) -> str:
+        return f"{words} ({self.chart[dimension]})"
+
+    def length_unit(self) -> tuple[str, float]:
+        return self.chart["length"], self._per_unit["length"]
+
+
+def pct(fraction: float | None, signed: bool = False) -> str:
+    if fraction is None or not math.isfinite(fraction):
+        return NONE
+    return f"{fraction * 100:+.1f} %" if signed else f"{fraction * 100:.1f} %"
+
+
+def ratio(value: float | None) -> str:
+    return NONE if value is None else f"{value:.2f} : 1"
+
+
+def heading(title: str) -> str:
+    """Front matter and H1 of a generated page; title is record text."""
+    return f"{front_matter_title(title)}# {md(title)}"
+
+
+def table(header: Sequence[str], rows: Sequence[Sequence[str]]) -> str:
+    """A Markdown table; cells must already be escaped."""
+    lines = ["| " + " | ".join(header) + " |", "|" + "---|" * len(header)]
+    lines += ["| " + " | ".join(cell or NONE for cell in row) + " |" for row in rows]
+    return "\n".join(lines)
+
+
+def similar_of(analysis: Any, build_id: str) -> list:
+    similar = getattr(analysis, "similar", None)
+    if callable(similar):
+        return list(similar(build_id))
+    return list((similar or {}).get(build_id, ()))
+
+
+def parts_of(build: Build) -> list[tuple[str, str]]:
+    """(kind, part id) for each catalogue part a build uses."""
+    used = []
+    for kind, (attr, _title) in PART_KINDS.items():
+        part_id = getattr(getattr(build, attr), "part", None)
+        if part_id:
+            used.append((kind, part_id))
+    return used
+
+
+def measured_effort(build: Build) -> float | None:
+    return build.measured.pedal_effort if build.measured else None
+
+
+def by_date(builds: Sequence[Build]) -> list[Build]:
+    """Newest first; undated builds last; ties by id."""
+    return sorted(builds, key=lambda b: (-(b.date or _dt.date.min).toordinal(), b.id))
+
+
+# --- section tables ---------------------------------------------------------------------
+
+def section_rows(section: Any, show: Display) -> list[list[str]]:
+    """One row per known field of a record section (Gearbox, Clutch, Master, ...)."""
+    rows = []
+    for f in dataclasses.fields(section):
+        value = getattr(section, f.name)
+        if value is None or f.name in ("part", "layout"):
+            continue
+        name = md(FIELD_WORDS.get(f.name, f.name.replace("_", " ")))
+        if f.name in FIELD_DIMENSIONS:
+            rows.append([name, show.q(value, FIELD_DIMENSIONS[f.name])])
+        elif f.name == "load_curve":
+            pairs = "; ".join(f"{show.q(t, 'length')} at {show.q(load, 'force')}" for t, load in value)
+            rows.append([name, pairs])
+        else:
+            rows.append([name, md(value)])
+    layout = getattr(section, "layout", None)
+    if layout is not None:
+        for point in ("pivot", "pad", "clevis", "pushrod_seat"):
+            x, y = getattr(layout, point)
+            rows.append([md(f"layout {FIELD_WORDS.get(point, point)} (x, y)"),
+                         f"{show.q(x, 'length')}, {show.q(y, 'length')}"])
+        rows.append([md("layout rotation to stop"), show.q(layout.rotation_to_stop, "angle")])
+    return rows
+
+
+# --- pages --------------------------------------------------------------------------------
+
+@dataclass
+class SiteData:
+    """The Analysis with the look-ups every page needs, computed once."""
+
+    analysis: Any
+    show: Display
+    builds: list[Build]
+    by_id: dict[str, Build]
+    used_by: dict[tuple[str, str], list[Build]]
+
+    @classmethod
+    def of(cls, analysis: Any) -> "SiteData":
+        builds = sorted(analysis.shop.builds, key=lambda b: b.id)
+        used_by: dict[tuple[str, str], list[Build]] = defaultdict(list)
+        for build in builds:
+            for key in parts_of(build):
+                used_by[key].append(build)
+        return cls(analysis, Display(analysis.shop.rules), builds, {b.id: b for b in builds},
+                   used_by)
+
+    @property
+    def rules(self) -> ShopRules:
+        return self.analysis.shop.rules
+
+    def sizing(self, build_id: str):
+        return self.analysis.sizings.get(build_id)
+
+    def deltas(self, build_id: str):
+        return self.analysis.deltas.get(build_id)
+
+    def prediction(self, build_id: str):
+        return self.analysis.predictions.get(build_id)
+
+
+def generated_pages(analysis: Any, progress: Callable[[int, int], None] | None = None
+                    ) -> Iterator[tuple[str, str]]:
+    """Every generated file for the docs dir as (relative posix path, text)."""
+    data = SiteData.of(analysis)
+    yield "index.md", home_page(data)
+    yield "charts/effort-computed-vs-measured.svg", effort_scatter(data)
+    yield "reference.md", reference_page(data)
+    yield "builds/index.md", builds_index(data)
+    yield "parts/index.md", parts_index(data)
+    yield "calibration.md", calibration_page(data)
+    yield from calibration_charts(data)
+    for kind, parts in sorted(analysis.shop.parts.items()):
+        for part_id, part in sorted(parts.items()):
+            yield f"parts/{kind}/{slug(part_id)}.md", part_page(data, part)
+    total = len(data.builds)
+    for i, build in enumerate(data.builds, 1):
+        yield from build_files(data, build)
+        if progress is not None:
+            progress(i, total)
+
+
+def home_page(data: SiteData) -> str:
+    builds = data.builds
+    verified = sum(b.status == "verified" for b in builds)
+    rejected = sum(b.status == "rejected" for b in builds)
+    families = {b.gearbox.family for b in builds}
+    parts = sum(len(p) for p in data.analysis.shop.parts.values())
+    latest = by_date(builds)[:LATEST]
+    rows = [[build_link(b.id, ""), md(b.date.isoformat() if b.date else NONE), md(b.status),
+             md(b.gearbox.family), md(b.vehicle), data.show.q(measured_effort(b), "force"),
+             md(b.outcome)] for b in latest]
+    return "\n\n".join([
+        heading(data.rules.site_title),
+        "Hydraulic clutch conversions recorded by this shop: what was fitted, what the "
+        "calculation promised and what the finished car measured.",
+        '!!! warning "Before you work on a hydraulic clutch"\n    Line pressure runs to several '
+        "hundred psi and brake fluid is toxic. Read the [cautions](cautions.md) and follow the "
+        "component makers' specifications.",
+        table(["Builds", "Verified", "Rejected", "Gearbox families", "Catalogue parts"],
+              [[str(len(builds)), str(verified), str(rejected), str(len(families)), str(parts)]]),
+        "## Computed against measured pedal effort",
+        "Each dot is a measured build: across, the effort the calculation gave with the shop's "
+        "default efficiency; up, the effort measured at the pad. Dots inside the grey band are "
+        "within 10 % of the calculation. The [calibration](calibration.md) page shows what the "
+        "shop has learned from the differences.",
+        "![Computed against measured pedal effort](charts/effort-computed-vs-measured.svg)",
+        "## Latest builds",
+        table(["Build", "Date", "Status", "Family", "Vehicle", "Measured effort", "Outcome"], rows),
+        "All builds are listed on the [builds](builds/index.md) page; verified combinations by "
+        "gearbox family are in the [fitment reference](reference.md).",
+    ]) + "\n"
+
+
+def effort_scatter(data: SiteData) -> str:
+    by_status: dict[str, list[tuple[float, float]]] = defaultdict(list)
+    for b in data.builds:
+        sizing, effort = data.sizing(b.id), measured_effort(b)
+        if sizing is None or effort is None:
+            continue
+        by_status[b.status].append((data.show.chart_value(sizing.effort_predicted, "force"),
+                                    data.show.chart_value(effort, "force")))
+    series = [svg.Series(f"{status} ({len(points)})", points, STATUS_COLORS.get(status, "#555"))
+              for status, points in sorted(by_status.items())]
+    chart = svg.XYChart(data.show.chart_label("computed pedal effort", "force"),
+                        data.show.chart_label("measured pedal effort", "force"),
+                        series=series, identity_band=0.10)
+    return chart.render()
+
+
+def combination_key(build: Build, show: Display) -> tuple[str, str, str]:
+    """Master / slave / pedal as the reference shows them: part id, or the inline size."""
+    master = build.master.part or f"{units.show(build.master.bore, 'length', show.primary)} bore"
+    if build.slave.part:
+        slave = build.slave.part
+    elif build.slave.bore is not None:
+        slave = f"{units.show(build.slave.bore, 'length', show.primary)} bore"
+    else:
+        slave = f"{units.show(build.slave.area, 'area', show.primary)} piston"
+    pedal = build.pedal.part or "inline pedal"
+    return master, slave, pedal
+
+
+def _combo_cell(kind: str, build: Build, text: str) -> str:
+    part_id = getattr(getattr(build, PART_KINDS[kind][0]), "part", None)
+    return part_link(kind, part_id, "") if part_id else md(text)
+
+
+def reference_page(data: SiteData) -> str:
+    groups: dict[tuple[str, str], dict[tuple[str, str, str], list[Build]]] = defaultdict(
+        lambda: defaultdict(list))
+    for b in data.builds:
+        if b.status in ("verified", "rejected"):
+            groups[(b.gearbox.family, b.gearbox.fork_tip_moves)][combination_key(b, data.show)].append(b)
+    out = [heading("Fitment reference"),
+           "Master, slave and pedal combinations this shop has finished, by gearbox family and "
+           "the way the fork tip moves. Only verified builds (checked on the car) and rejected "
+           "builds (tried and failed) are listed; a combination that failed is marked "
+           "**\u2718 failed** and should not be repeated without finding out why. Click a column "
+           "heading to sort.",
+           "Measured effort is the median of the builds behind the row; travel margin is the "
+           "smallest computed margin among them (release bearing travel over what the clutch "
+           "needs).",
+           '!!! note "A record is not a guarantee"\n    Each row describes what fitted one '
+           "shop's cars. Check every part against its maker's specification before ordering."]
+    if not groups:
+        out.append("No verified or rejected builds yet.")
+    for family, direction in sorted(groups):
+        out.append(f"## {md(family)} \u2014 {md(FORK_WORDS.get(direction, direction))}")
+        rows = []
+        for key, members in sorted(groups[(family, direction)].items()):
+            first = members[0]
+            efforts = [e for e in map(measured_effort, members) if e is not None]
+            margins = [s.margin for s in map(data.sizing, (m.id for m in members)) if s is not None]
+            failed = sum(m.status == "rejected" for m in members)
+            ok = len(members) - failed
+            if failed and ok:
+                result = f"**\u2718 mixed**: {ok} verified, {failed} failed"
+            elif failed:
+                result = f"**\u2718 failed** ({failed})"
+            else:
+                result = f"\u2714 verified ({ok})"
+            rows.append([_combo_cell("masters", first, key[0]), _combo_cell("slaves", first, key[1]),
+                         _combo_cell("pedals", first, key[2]),
+                         ", ".join(build_link(m.id, "") for m in members),
+                         data.show.q(statistics.median(efforts) if efforts else None, "force"),
+                         pct(min(margins) if margins else None, signed=True), result])
+        out.append(table(["Master", "Slave", "Pedal", "Builds", "Measured effort (median)",
+                          "Travel margin (least)", "Result"], rows))
+    return "\n\n".join(out) + "\n"
+
+
+def builds_index(data: SiteData) -> str:
+    rows = []
+    for b in data.builds:
+        sizing = data.sizing(b.id)
+        rows.append([build_link(b.id, "builds"), md(b.date.isoformat() if b.date else NONE),
+                     md(b.status), md(b.gearbox.family), md(b.vehicle),
+                     data.show.q(b.master.bore, "length"),
+                     data.show.q(b.slave.bore, "length") if b.slave.bore else data.show.q(b.slave.area, "area"),
+                     data.show.q(sizing.effort_predicted if sizing else None, "force"),
+                     data.show.q(measured_effort(b), "force"), md(b.outcome)])
+    return "\n\n".join([
+        heading("Builds"),
+        f"All {len(data.builds)} build records, newest id last. Click a column heading to sort; "
+        "use the search box to find a build by id, gearbox family, part id, bore or words in "
+        "its notes.",
+        table(["Build", "Date", "Status", "Family", "Vehicle", "Master bore", "Slave bore",
+               "Computed effort", "Measured effort", "Outcome"], rows)]) + "\n"
+
+
+def parts_index(data: SiteData) -> str:
+    out = [heading("Parts"), "The shop's catalogue. Each part's page lists the builds that used it and "
+           "how they came out."]
+    for kind, parts in sorted(data.analysis.shop.parts.items()):
+        out.append(f"## {md(PART_KINDS.get(kind, (kind, kind))[1])}s")
+        rows = []
+        for part_id, part in sorted(parts.items()):
+            users = data.used_by.get((kind, part_id), [])
+            rows.append([part_link(kind, part_id, "parts"), md(part.label),
+                         "; ".join(" ".join(r) for r in section_rows(part.section, data.show)[:3]),
+                         str(len(users)), str(sum(u.status == "verified" for u in users)),
+                         str(sum(u.status == "rejected" for u in users))])
+        out.append(table(["Part", "Label", "Key values", "Builds", "Verified", "Rejected"], rows))
+    return "\n\n".join(out) + "\n"
+
+
+def part_page(data: SiteData, part: Part) -> str:
+    title = PART_KINDS.get(part.kind, (part.kind, part.kind))[1]
+    users = data.used_by.get((part.kind, part.id), [])
+    rows = []
+    for b in users:
+        sizing, deltas = data.sizing(b.id), data.deltas(b.id)
+        rows.append([build_link(b.id, "part"), md(b.status), md(b.gearbox.family),
+                     data.show.q(measured_effort(b), "force"),
+                     pct(deltas.effort if deltas else None, signed=True),
+                     pct(sizing.margin if sizing else None, signed=True), md(b.outcome)])
+    out = [heading(f"{title} {part.id}")]
+    if part.label:
+        out.append(md(part.label))
+    out.append(table(["Field", "Value"], section_rows(part.section, data.show)))
+    out.append("## Where used")
+    if rows:
+        out.append(table(["Build", "Status", "Family", "Measured effort", "Effort delta",
+                          "Travel margin", "Outcome"], rows))
+    else:
+        out.append("No build uses this part yet.")
+    return "\n\n".join(out) + "\n"
+
+
+def calibration_page(data: SiteData) -> str:
+    cal = data.analysis.calibration
+    groups = [cal.shop] + [cal.families[name] for name in sorted(cal.families)]
+    rows = []
+    for g in groups:
+        rows.append([md(g.name), str(g.n), pct(g.efficiency), _spread(_get(g, "efficiency_median"),
+                     g.efficiency_mad), f"{g.weight:.2f}",
+                     NONE if g.travel_factor is None else f"{g.travel_factor:.3f}",
+                     _spread(_get(g, "travel_factor_median"), g.travel_factor_mad, percent=False),
+                     str(g.n_travel), pct(g.loo_median_abs_err), pct(g.loo_p90_abs_err)])
+    return "\n\n".join([
+        heading("Calibration"),
+        "What the shop's own measurements say about its losses. Apparent efficiency is the "
+        "ideal pedal effort (release load over overall ratio) divided by the measured effort; "
+        "the travel factor is measured slave travel over computed slave travel. A family with "
+        "few builds leans on the shop-wide value (its weight shows how much it stands on its "
+        "own). The leave-one-out errors show how far a prediction has typically been off: "
+        "each build predicted from all the others.",
+        table(["Group", "Builds", "Efficiency used", "Own median \u00b1 MAD", "Weight",
+               "Travel factor used", "Own median \u00b1 MAD", "Builds with travel",
+               "Typical error", "90 % of errors below"], rows),
+        "![Apparent efficiency by gearbox family](charts/calibration-efficiency.svg)",
+        "![Travel factor by gearbox family](charts/calibration-travel.svg)",
+        "How these numbers are worked out is on the [method](method.md) page.",
+    ]) + "\n"
+
+
+def _get(obj: Any, name: str) -> Any:
+    return getattr(obj, name, None)
+
+
+def _spread(median: float | None, mad: float | None, percent: bool = True) -> str:
+    if median is None:
+        return NONE
+    if percent:
+        return f"{median * 100:.1f} % \u00b1 {(mad or 0) * 100:.1f}"
+    return f"{median:.3f} \u00b1 {(mad or 0):.3f}"
+
+
+def calibration_charts(data: SiteData) -> Iterator[tuple[str, str]]:
+    cal = data.analysis.calibration
+    families = [cal.families[name] for name in sorted(cal.families)]
+    for name, value, mad, words, scale in (
+            ("efficiency", "efficiency", "efficiency_mad", "apparent efficiency (%)", 100.0),
+            ("travel", "travel_factor", "travel_factor_mad", "travel factor (measured / computed)", 1.0)):
+        rows = []
+        for g in families:
+            v = _get(g, f"{value}_median") if _get(g, f"{value}_median") is not None else _get(g, value)
+            if v is None:
+                continue
+            spread = _get(g, mad) or 0.0
+            count = g.n if name == "efficiency" else g.n_travel
+            rows.append(svg.DotRow(g.name, v * scale, (v - spread) * scale, (v + spread) * scale,
+                                   f"{count} build{'s' if count != 1 else ''}"))
+        shop = _get(cal.shop, value)
+        reference = (shop * scale, "shop-wide") if shop is not None else None
+        yield f"charts/calibration-{name}.svg", svg.dot_rows_chart(rows, words, reference)
+
+
+# --- one build ----------------------------------------------------------------------------
+
+def build_files(data: SiteData, build: Build) -> Iterator[tuple[str, str]]:
+    sizing = data.sizing(build.id)
+    name = slug(build.id)
+    pictures = []
+    if sizing is not None:
+        yield f"builds/{name}-linkage.svg", linkage_svg(data, build, sizing)
+        pictures.append("linkage")
+        if sizing.effort_curve:
+            yield f"builds/{name}-effort.svg", effort_curve_svg(data, build, sizing)
+            pictures.append("effort")
+    yield f"builds/{name}.md", build_page(data, build, sizing, pictures)
+
+
+def build_page(data: SiteData, build: Build, sizing: Any, pictures: list[str]) -> str:
+    show = data.show
+    name = slug(build.id)
+    out = [heading(build.id),
+           table(["Status", "Date", "Gearbox family", "Technician", "Vehicle"],
+                 [[md(STATUS_WORDS.get(build.status, build.status)),
+                   md(build.date.isoformat() if build.date else NONE), md(build.gearbox.family),
+                   md(build.technician), md(build.vehicle)]])]
+    if build.outcome:
+        out.append(f"**Outcome:** {md(build.outcome)}")
+    if sizing is not None:
+        out += flag_blocks(sizing)
+        out.append("## Computed against measured")
+        out.append(result_table(data, build, sizing))
+        out.append(prediction_text(data, build))
+        out.append("## Pedal linkage")
+        out.append(f"![Pedal linkage of {md(build.id)}, to scale]({name}-linkage.svg)")
+        if "effort" in pictures:
+            out.append("## Pedal effort through the stroke")
+            out.append(f"![Pedal effort against pad travel for {md(build.id)}]({name}-effort.svg)")
+        out.append("## Ratios, travel, pressure and volume")
+        out.append(engineering_table(data, build, sizing))
+    else:
+        out.append('!!! failure "Not sized"\n    The engine could not size this build; '
+                   "check the record with the command line tool.")
+    out.append("## Inputs")
+    for title, section in (("Gearbox", build.gearbox), ("Clutch", build.clutch),
+                           ("Fork", build.fork), ("Master cylinder", build.master),
+                           ("Slave cylinder", build.slave), ("Line", build.line),
+                           ("Pedal", build.pedal), ("Measured on the car", build.measured)):
+        if section is not None:
+            out.append(f"### {title}")
+            out.append(table(["Field", "Value"], section_rows(section, show)))
+    used = parts_of(build)
+    if used:
+        out.append("## Catalogue parts used")
+        out.append("\n".join(f"- {PART_KINDS[kind][1]}: {part_link(kind, pid, 'builds')}"
+                             for kind, pid in used))
+    out.append("## Similar builds")
+    out.append(similar_table(data, build))
+    if build.notes:
+        out.append("## Notes")
+        out.append(md_paragraphs(build.notes))
+    return "\n\n".join(out) + "\n"
+
+
+def flag_blocks(sizing: Any) -> list[str]:
+    blocks = []
+    for flag in sizing.flags:
+        kind, title = ("failure", "Fails a check") if flag.severity == "fail" else ("warning", "Warning")
+        blocks.append(f'!!! {kind} "{title}"\n    {md(flag.message)} ({md(flag.code)})')
+    if not sizing.flags:
+        blocks.append("No check flagged this build.")
+    return blocks
+
+
+def result_table(data: SiteData, build: Build, sizing: Any) -> str:
+    show, deltas = data.show, data.deltas(build.id)
+    measured = build.measured
+    effort_row = [f"Pedal effort at {pct(sizing.efficiency)} efficiency",
+                  show.q(sizing.effort_predicted, "force"),
+                  show.q(measured.pedal_effort if measured else None, "force"),
+                  pct(deltas.effort if deltas else None, signed=True)]
+    return table(["", "Computed", "Measured", "Difference"], [
+        ["Pedal effort, no losses", show.q(sizing.effort_ideal, "force"), "", ""],
+        effort_row,
+        ["Slave travel", show.q(sizing.slave_travel, "length"),
+         show.q(measured.slave_travel if measured else None, "length"),
+         pct(deltas.slave_travel if deltas else None, signed=True)],
+        ["Pad travel to release", show.q(sizing.pad_travel_to_release, "length"),
+         show.q(measured.pad_travel_to_release if measured else None, "length"), ""],
+        ["Floor gap (master bottoms early)", show.q(sizing.floor_gap, "length"),
+         show.q(measured.floor_gap if measured else None, "length"),
+         pct(deltas.floor_gap if deltas else None, signed=True)],
+    ]) + (f"\n\nMeasured with: {md(measured.method)}" if measured and measured.method else "")
+
+
+def prediction_text(data: SiteData, build: Build) -> str:
+    prediction = data.prediction(build.id)
+    if prediction is None:
+        return ""
+    if prediction.effort is None:
+        return f"**Calibrated prediction:** {md(prediction.note or 'not enough history')}"
+    text = f"**Calibrated prediction:** {data.show.q(prediction.effort, 'force')}"
+    if prediction.interval is not None:
+        lo, hi = prediction.interval
+        text += f", likely between {data.show.q(lo, 'force')} and {data.show.q(hi, 'force')}"
+    text += f" \u2014 from {prediction.n_builds} builds ({md(prediction.basis)})"
+    if prediction.note:
+        text += f"; {md(prediction.note)}"
+    return text + "."
+
+
+def engineering_table(data: SiteData, build: Build, sizing: Any) -> str:
+    show, link, rules = data.show, sizing.linkage, data.rules
+    ratings = [r for r in (build.master.rated_pressure, build.slave.rated_pressure) if r]
+    rows = [
+        ["Pedal ratio (at rest / at release / at stop / average)",
+         " / ".join(ratio(v) for v in (link.ratio_at_rest, link.ratio_at_release,
+                                        link.ratio_at_stop, link.ratio_average))],
+        ["Hydraulic ratio (slave area / master area)", ratio(sizing.ratio_hydraulic)],
+        ["Fork ratio", ratio(sizing.ratio_fork)],
+        ["Overall ratio", ratio(sizing.ratio_overall)],
+        ["Master stroke used", show.q(sizing.master_stroke_used, "length")],
+        ["Release bearing travel (available / needed)",
+         f"{show.q(sizing.bearing_travel, 'length')} / {show.q(sizing.needed_bearing_travel, 'length')}"],
+        [f"Travel margin (shop minimum {pct(rules.min_travel_margin)})", pct(sizing.margin, signed=True)],
+        [f"Release point (shop latest {pct(rules.latest_release_point)} of pad travel)",
+         pct(sizing.release_point)],
+        ["Line pressure at full release", show.q(sizing.pressure, "pressure")
+         + (f" (lowest rating {show.q(min(ratings), 'pressure')})" if ratings else "")],
+        ["Master swept volume", show.q(sizing.master_swept_volume, "volume")],
+        ["Volume needed for full release (losses included)", show.q(sizing.needed_volume, "volume")],
+        ["Losses (hose expansion and fluid compression)", show.q(sizing.losses_volume, "volume")],
+    ]
+    if link.pushrod_angle_max is not None:
+        rows.append(["Largest pushrod angle to the bore axis", show.q(link.pushrod_angle_max, "angle")])
+    return table(["Quantity", "Value"], rows)
+
+
+def similar_table(data: SiteData, build: Build) -> str:
+    similar = similar_of(data.analysis, build.id)
+    if not similar:
+        return "No similar measured builds yet."
+    rows = [[build_link(s.id, "builds") if s.id in data.by_id else md(s.id), f"{s.distance:.2f}",
+             md("; ".join(s.differs)) or "nothing notable", md(s.status),
+             data.show.q(s.measured_effort, "force"), md(s.outcome)] for s in similar]
+    return ("Distance 0 is an identical build; each 1.0 is about one different category or a "
+            "10 % difference in one size ([method](../method.md)).\n\n"
+            + table(["Build", "Distance", "What differs", "Status", "Measured effort", "Outcome"], rows))
+
+
+# --- per-build pictures -------------------------------------------------------------------
+
+def linkage_svg(data: SiteData, build: Build, sizing: Any) -> str:
+    link = sizing.linkage
+    if link.mode == "layout" and link.rest is not None and link.stop is not None:
+        rest = (link.rest.pivot, link.rest.pad, link.rest.clevis, link.rest.pushrod_seat)
+        stop = (link.stop.pivot, link.stop.pad, link.stop.clevis, link.stop.pushrod_seat)
+        caption = f"{build.id}: pedal linkage from the recorded layout, to scale"
+    else:
+        rest, stop = simple_poses(build, sizing)
+        caption = f"{build.id}: schematic from the two pedal lengths, to scale"
+    return svg.linkage_drawing(rest, stop, build.master.bore, build.master.stroke,
+                               data.show.length_unit(), caption)
+
+
+def simple_poses(build: Build, sizing: Any) -> tuple[tuple, tuple]:
+    """Hanging pedal drawn from pivot-to-pad and pivot-to-clevis: pad straight below the
+    pivot at rest, swung forward (+x) through the angle its pad travel implies (arc length
+    over radius); the pushrod runs forward from the clevis, level at rest, the master piston
+    moved by the stroke the engine used."""
+    pedal = build.pedal
+    to_pad = pedal.pivot_to_pad or sizing.ratio_pedal * (pedal.pivot_to_clevis or 0.05)
+    to_clevis = pedal.pivot_to_clevis or to_pad / sizing.ratio_pedal
+    swing = pedal.pad_travel / to_pad
+    rod = max(0.45 * to_pad, 2.5 * build.master.stroke)
+    pivot = (0.0, 0.0)
+
+    def pose(angle: float, stroke: float) -> tuple:
+        s, c = math.sin(angle), math.cos(angle)
+        clevis = (to_clevis * s, -to_clevis * c)
+        seat = (rod + stroke, -to_clevis)
+        return pivot, (to_pad * s, -to_pad * c), clevis, seat
+
+    return pose(0.0, 0.0), pose(swing, sizing.master_stroke_used)
+
+
+def effort_curve_svg(data: SiteData, build: Build, sizing: Any) -> str:
+    show = data.show
+    points = [(show.chart_value(t, "length"), show.chart_value(f, "force"))
+              for t, f in sizing.effort_curve]
+    low, high = data.rules.effort_band
+    markers = []
+    if sizing.pad_travel_to_release is not None:
+        markers.append(svg.Marker("x", show.chart_value(sizing.pad_travel_to_release, "length"),
+                                  "computed release point", "#6a1b9a"))
+    effort = measured_effort(build)
+    if effort is not None:
+        markers.append(svg.Marker("y", show.chart_value(effort, "force"),
+                                  "measured peak effort", STATUS_COLORS["rejected"]))
+    chart = svg.XYChart(show.chart_label("pad travel from rest", "length"),
+                        show.chart_label("pedal effort at the pad", "force"),
+                        series=[svg.Series("computed effort", points, "#1565c0", kind="line")],
+                        bands=[svg.Band(show.chart_value(low, "force"), show.chart_value(high, "force"),
+                                        "shop effort band")],
+                        markers=markers)
+    return chart.render()
+
+
+def method_appendix(description: str) -> str:
+    """The similarity section appended to the hand-written method page (project text)."""
+    return "\n\n## How similar builds are found\n\n" + description.strip() + "\n"

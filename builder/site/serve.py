@@ -1,0 +1,89 @@
+"""Serve the site locally: build it, serve it on 127.0.0.1, rebuild when sources change."""
+from __future__ import annotations
+
+import functools
+import os
+import shutil
+import sys
+import tempfile
+import threading
+from collections.abc import Callable
+from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
+from pathlib import Path
+from typing import Any
+
+from builder.problems import InputError
+from builder.site.build import PACKAGED_SITE_SRC, SiteBuildError, build_site
+
+
+class _QuietHandler(SimpleHTTPRequestHandler):
+    def log_message(self, format: str, *args: Any) -> None:  # noqa: A002 (stdlib name)
+        pass
+
+
+class StaticServer:
+    """http.server on a folder in a background thread; `with StaticServer(dir) as s: s.url`."""
+
+    def __init__(self, directory: str | os.PathLike, host: str = "127.0.0.1", port: int = 0):
+        handler = functools.partial(_QuietHandler, directory=str(directory))
+        self.httpd = ThreadingHTTPServer((host, port), handler)
+        self.thread = threading.Thread(target=self.httpd.serve_forever, daemon=True)
+
+    @property
+    def url(self) -> str:
+        host, port = self.httpd.server_address[:2]
+        return f"http://{host}:{port}/"
+
+    def __enter__(self) -> "StaticServer":
+        self.thread.start()
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.httpd.shutdown()
+        self.httpd.server_close()
+        self.thread.join()
+
+
+def source_stamp(folders: list[Path]) -> tuple:
+    """What changed-detection compares: every file's path, size and modification time."""
+    stamp = []
+    for folder in folders:
+        for path in sorted(folder.rglob("*")) if folder.is_dir() else ():
+            if path.is_file():
+                info = path.stat()
+                stamp.append((str(path), info.st_size, info.st_mtime_ns))
+    return tuple(stamp)
+
+
+def serve(analysis_loader: Callable[[], Any], host: str = "127.0.0.1", port: int = 8000,
+          site_src: str | os.PathLike | None = None, poll_seconds: float = 1.0) -> None:
+    """Build the site, serve it at http://host:port/ until interrupted, and rebuild it when
+    the records or site sources change. A rebuild that fails (bad record, strict mkdocs
+    warning) is reported and the last good site keeps being served."""
+    analysis = analysis_loader()
+    work = Path(tempfile.mkdtemp(prefix="fitment-serve-"))
+    out = work / "site"
+    try:
+        build_site(analysis, out, site_src)
+        watched = [Path(analysis.shop.root), PACKAGED_SITE_SRC,
+                   Path(site_src) if site_src else Path(analysis.shop.root).resolve().parent / "site_src"]
+        stamp = source_stamp(watched)
+        with StaticServer(out, host, port) as server:
+            print(f"Serving the site at {server.url} (Ctrl+C to stop)", file=sys.stderr)
+            stop = threading.Event()
+            while not stop.wait(poll_seconds):
+                now = source_stamp(watched)
+                if now == stamp:
+                    continue
+                stamp = now
+                try:
+                    build_site(analysis_loader(), out, site_src)
+                    print("Rebuilt the site.", file=sys.stderr)
+                except InputError as error:
+                    print(f"{error}\nKept the last good site.", file=sys.stderr)
+                except SiteBuildError as error:
+                    print(f"{error}\nKept the last good site.", file=sys.stderr)
+    except KeyboardInterrupt:
+        pass
+    finally:
+        shutil.rmtree(work, ignore_errors=True)

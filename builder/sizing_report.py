@@ -1,0 +1,197 @@
+"""`fitment check`: size one file against the shop's history, as text or the JSON contract."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Callable
+
+from builder.model import Build
+from builder.problems import InputError, Problem
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    build: Build
+    sizing: object  # builder.engine.result.Sizing
+    prediction: object  # builder.history Prediction
+    deltas: object  # builder.history Deltas
+    similar: list  # builder.history SimilarBuild, nearest first
+
+
+def check_file(analysis, path: Path, k: int) -> CheckResult:
+    """Size FILE: a record of the shop (its own history left out) or a proposal anywhere."""
+    from builder.history import analyse_proposal
+    from builder.records import load_build_file
+
+    if not path.is_file():
+        raise InputError([Problem(str(path), 0, 0, "file", "no such file")])
+    target = path.resolve()
+    for build in analysis.shop.builds:
+        if Path(build.path).resolve() == target:
+            sizing, prediction, similar, deltas = analyse_proposal(analysis, build, k)
+            return CheckResult(build, sizing, prediction, deltas, similar)
+    build = load_build_file(path, analysis.shop)
+    sizing, prediction, similar, deltas = analyse_proposal(analysis, build, k)
+    return CheckResult(build, sizing, prediction, deltas, similar)
+
+
+def _mm(value: float | None) -> float | None:
+    return None if value is None else round(value * 1000.0, 3)
+
+
+def _ml(value: float | None) -> float | None:
+    return None if value is None else round(value * 1e6, 3)
+
+
+def _pct(fraction: float | None) -> float | None:
+    return None if fraction is None else round(fraction * 100.0, 2)
+
+
+def _n(value: float | None) -> float | None:
+    return None if value is None else round(value, 2)
+
+
+def predicted_effort(result: CheckResult) -> float:
+    """Calibrated prediction when history allows, else ideal / shop default efficiency."""
+    calibrated = result.prediction.effort if result.prediction is not None else None
+    return calibrated if calibrated is not None else result.sizing.effort_predicted
+
+
+def contract(result: CheckResult) -> dict:
+    """The `check --json` object: every key present, unknown values null (DESIGN section 6)."""
+    s, b, p = result.sizing, result.build, result.prediction
+    measured = b.measured
+    interval = p.interval if p is not None else None
+    return {
+        "id": b.id,
+        "status": b.status,
+        "ratios": {
+            "pedal": round(s.ratio_pedal, 4),
+            "hydraulic": round(s.ratio_hydraulic, 4),
+            "fork": round(s.ratio_fork, 4),
+            "overall": round(s.ratio_overall, 4),
+        },
+        "effort": {
+            "ideal_N": _n(s.effort_ideal),
+            "predicted_N": _n(predicted_effort(result)),
+            "interval_N": None if interval is None else [_n(interval[0]), _n(interval[1])],
+            "measured_N": _n(measured.pedal_effort if measured else None),
+            "delta_pct": _pct(result.deltas.effort if result.deltas else None),
+            "basis": p.basis if p is not None else None,
+            "builds_behind": p.n_builds if p is not None else 0,
+            "note": p.note if p is not None else None,
+        },
+        "travel": {
+            "master_stroke_used_mm": _mm(s.master_stroke_used),
+            "slave_mm": _mm(s.slave_travel),
+            "bearing_mm": _mm(s.bearing_travel),
+            "needed_bearing_mm": _mm(s.needed_bearing_travel),
+            "margin_pct": _pct(s.margin),
+            "release_point_pct": _pct(s.release_point),
+            "measured_slave_mm": _mm(measured.slave_travel if measured else None),
+            "delta_pct": _pct(result.deltas.slave_travel if result.deltas else None),
+        },
+        "pressure_kPa": round(s.pressure / 1000.0, 1),
+        "volume": {
+            "master_swept_ml": _ml(s.master_swept_volume),
+            "needed_ml": _ml(s.needed_volume),
+            "losses_ml": _ml(s.losses_volume),
+        },
+        "pedal": {"floor_gap_mm": _mm(s.floor_gap)},
+        "flags": [
+            {"code": f.code, "severity": f.severity, "message": f.message} for f in s.flags
+        ],
+        "similar": [
+            {
+                "id": item.id,
+                "distance": round(item.distance, 4),
+                "differs": list(item.differs),
+                "measured_effort_N": _n(item.measured_effort),
+                "outcome": item.outcome,
+            }
+            for item in result.similar
+        ],
+    }
+
+
+def describe(result: CheckResult, safe: Callable[[str | None], str], primary: str) -> str:
+    """The technician's view: every figure in both unit systems, flags as sentences."""
+    from builder.units import show
+
+    s, b, p = result.sizing, result.build, result.prediction
+    lines: list[str] = []
+
+    def row(label: str, text: str) -> None:
+        lines.append(f"{label:<11} {text}")
+
+    lines.append(f"{safe(b.id)}  [{b.status}]  {safe(b.path)}")
+    gearbox = f"{safe(b.gearbox.family)} {safe(b.gearbox.variant)}".strip()
+    lines.append(f"{safe(b.vehicle)} | gearbox {gearbox}, fork tip {b.gearbox.fork_tip_moves}, "
+                 f"{b.slave.kind} slave")
+    lines.append("")
+    row("Ratios", f"pedal {s.ratio_pedal:.2f} ({s.linkage.mode})   hydraulic "
+        f"{s.ratio_hydraulic:.2f}   fork {s.ratio_fork:.2f}   overall {s.ratio_overall:.1f}")
+    if s.linkage.mode == "layout":
+        release = ("never" if s.linkage.ratio_at_release is None
+                   else f"{s.linkage.ratio_at_release:.2f}")
+        angle = s.linkage.pushrod_angle_max
+        row("", f"pedal ratio at rest {s.linkage.ratio_at_rest:.2f}, at release {release}, "
+            f"at stop {s.linkage.ratio_at_stop:.2f}"
+            + ("" if angle is None else f"; pushrod up to {angle * 57.29578:.1f} deg off axis"))
+    row("Effort", f"ideal {show(s.effort_ideal, 'force', primary)}")
+    effort = predicted_effort(result)
+    if p is not None and p.effort is not None:
+        spread = ""
+        if p.interval is not None:
+            spread = (f", likely {show(p.interval[0], 'force', primary)} to "
+                      f"{show(p.interval[1], 'force', primary)}")
+        row("", f"predicted {show(effort, 'force', primary)} from {p.basis} "
+            f"({p.n_builds} builds){spread}")
+    else:
+        note = p.note if p is not None and p.note else "not enough history"
+        row("", f"predicted {show(effort, 'force', primary)} at the shop default efficiency "
+            f"{s.efficiency:.0%} ({note})")
+    band = ""
+    if b.measured is not None and b.measured.pedal_effort is not None:
+        delta = result.deltas.effort if result.deltas else None
+        band = f"measured {show(b.measured.pedal_effort, 'force', primary)}"
+        if delta is not None:
+            band += f", {delta:+.1%} against computed"
+        row("", band)
+    row("Travel", f"master stroke used {show(s.master_stroke_used, 'length', primary)}, slave "
+        f"{show(s.slave_travel, 'length', primary)}"
+        + (" (slave stroke reached)" if s.slave_overtravel else ""))
+    row("", f"bearing {show(s.bearing_travel, 'length', primary)} against "
+        f"{show(s.needed_bearing_travel, 'length', primary)} needed: margin {s.margin:+.0%}")
+    release = ("never reached" if s.release_point is None
+               else f"{s.release_point:.0%} of pad travel")
+    row("", f"full release at {release}")
+    if b.measured is not None and b.measured.slave_travel is not None:
+        delta = result.deltas.slave_travel if result.deltas else None
+        row("", f"measured slave travel {show(b.measured.slave_travel, 'length', primary)}"
+            + ("" if delta is None else f", {delta:+.1%} against computed"))
+    row("Pressure", f"{show(s.pressure, 'pressure', primary)} in the line at peak release load")
+    row("Volume", f"master sweeps {show(s.master_swept_volume, 'volume', primary)}, release "
+        f"needs {show(s.needed_volume, 'volume', primary)} including "
+        f"{show(s.losses_volume, 'volume', primary)} of hose and fluid losses")
+    row("Pedal", "master does not bottom before the stop" if s.floor_gap <= 0 else
+        f"master bottoms {show(s.floor_gap, 'length', primary)} before the floor stop")
+    lines.append("")
+    if s.flags:
+        for flag in s.flags:
+            lines.append(f"{flag.severity.upper():<5} {flag.code}: {flag.message}")
+    else:
+        lines.append("No flags.")
+    if result.similar:
+        lines.append("")
+        lines.append("Most similar past builds:")
+        for item in result.similar:
+            effort_text = ("no measured effort" if item.measured_effort is None
+                           else f"measured {show(item.measured_effort, 'force', primary)}")
+            lines.append(f"  {safe(item.id)}  distance {item.distance:.2f}  [{item.status}]  "
+                         f"{effort_text}; {safe(item.outcome) or 'no outcome noted'}")
+            if item.differs:
+                lines.append(f"      differs: {safe('; '.join(item.differs))}")
+            else:
+                lines.append("      differs: nothing on the compared inputs")
+    return "\n".join(lines)

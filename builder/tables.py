@@ -1,0 +1,110 @@
+"""Row tables for `fitment report` and `fitment calibration`: text, CSV or JSON."""
+from __future__ import annotations
+
+import csv
+import io
+import json
+from typing import Callable
+
+# Cells a spreadsheet would read as a formula are prefixed with a quote (OWASP CSV injection).
+_FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
+
+def _round(value: float | None, digits: int) -> float | None:
+    return None if value is None else round(value, digits)
+
+
+def _mm(value: float | None) -> float | None:
+    return None if value is None else round(value * 1000.0, 2)
+
+
+def _pct(value: float | None) -> float | None:
+    return None if value is None else round(value * 100.0, 1)
+
+
+def report_rows(analysis) -> list[dict]:
+    """One row per build, newest first, in SI-derived columns named with their unit."""
+    rows = []
+    builds = sorted(analysis.shop.builds, key=lambda b: (str(b.date or ""), b.id), reverse=True)
+    for build in builds:
+        sizing = analysis.sizings[build.id]
+        prediction = analysis.predictions.get(build.id)
+        deltas = analysis.deltas.get(build.id)
+        measured = build.measured
+        rows.append({
+            "id": build.id,
+            "date": build.date.isoformat() if build.date else None,
+            "status": build.status,
+            "family": build.gearbox.family,
+            "fork_tip_moves": build.gearbox.fork_tip_moves,
+            "master_bore_mm": _mm(build.master.bore),
+            "slave_bore_mm": _mm(build.slave.bore),
+            "slave_area_mm2": _round(sizing.slave_area * 1e6, 1),
+            "pedal_ratio": _round(sizing.ratio_pedal, 2),
+            "hydraulic_ratio": _round(sizing.ratio_hydraulic, 3),
+            "fork_ratio": _round(sizing.ratio_fork, 3),
+            "overall_ratio": _round(sizing.ratio_overall, 2),
+            "computed_effort_N": _round(sizing.effort_predicted, 1),
+            "calibrated_effort_N": _round(prediction.effort if prediction else None, 1),
+            "measured_effort_N": _round(measured.pedal_effort if measured else None, 1),
+            "effort_delta_pct": _pct(deltas.effort if deltas else None),
+            "travel_margin_pct": _pct(sizing.margin),
+            "flags": " ".join(f.code for f in sizing.flags),
+        })
+    return rows
+
+
+def calibration_rows(analysis) -> list[dict]:
+    """Shop-wide first, then each gearbox family by name."""
+    calibration = analysis.calibration
+    groups = [("shop-wide", calibration.shop)] + sorted(calibration.families.items())
+    return [
+        {
+            "group": name,
+            "builds": group.n,
+            "efficiency_pct": _pct(group.efficiency),
+            "efficiency_spread_pct": _pct(group.efficiency_mad),
+            "travel_factor_pct": _pct(group.travel_factor),
+            "travel_spread_pct": _pct(group.travel_factor_mad),
+            "own_weight_pct": _pct(group.weight),
+            "loo_median_err_pct": _pct(group.loo_median_abs_err),
+            "loo_p90_err_pct": _pct(group.loo_p90_abs_err),
+        }
+        for name, group in groups
+    ]
+
+
+def _spreadsheet_safe(value):
+    if isinstance(value, str) and value.startswith(_FORMULA_STARTS):
+        return "'" + value
+    return value
+
+
+def render(rows: list[dict], fmt: str, safe: Callable[[str | None], str]) -> str:
+    """Rows as an aligned text table, CSV (header first) or a JSON array."""
+    if fmt == "json":
+        return json.dumps(rows, indent=2, ensure_ascii=True) + "\n"
+    if not rows:
+        return "" if fmt == "csv" else "No builds.\n"
+    headers = list(rows[0])
+    if fmt == "csv":
+        buffer = io.StringIO()
+        writer = csv.writer(buffer, lineterminator="\r\n")
+        writer.writerow(headers)
+        for row in rows:
+            writer.writerow(["" if row[h] is None else _spreadsheet_safe(row[h]) for h in headers])
+        return buffer.getvalue()
+    cells = [[_text(row[h], safe) for h in headers] for row in rows]
+    widths = [max(len(h), *(len(c[i]) for c in cells)) for i, h in enumerate(headers)]
+    out = ["  ".join(h.ljust(w) for h, w in zip(headers, widths))]
+    out.append("  ".join("-" * w for w in widths))
+    out.extend("  ".join(c.ljust(w) for c, w in zip(line, widths)) for line in cells)
+    return "\n".join(line.rstrip() for line in out) + "\n"
+
+
+def _text(value, safe: Callable[[str | None], str]) -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, float):
+        return f"{value:g}"
+    return safe(str(value)).replace("\n", " ")

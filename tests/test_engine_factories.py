@@ -1,0 +1,85 @@
+"""Invented builds and shop rules for the engine tests (no tests here, only makers).
+
+All values are invented; SI units as builder.model requires.
+"""
+from __future__ import annotations
+
+import dataclasses
+import math
+
+from builder.model import (
+    Build, Clutch, Fork, Gearbox, Line, Master, Pedal, PedalLayout, ShopRules, Slave,
+)
+
+INCH = 0.0254  # m, exact by definition (NIST SP 811, appendix B)
+POUND_FORCE = 4.4482216152605  # N, exact by definition (NIST SP 811, appendix B)
+PSI = POUND_FORCE / INCH**2  # Pa
+
+
+def make_rules(**changes) -> ShopRules:
+    """Shop rules; `lossless=True` turns hose expansion and fluid compression off."""
+    lossless = changes.pop("lossless", False)
+    rules = ShopRules(
+        site_title="Invented test shop",
+        display_units="imperial",
+        effort_band=(15 * POUND_FORCE, 45 * POUND_FORCE),
+        min_travel_margin=0.10,
+        latest_release_point=0.85,
+        default_efficiency=0.85,
+        hose_expansion={"rubber": 3.0e-13, "braided_ptfe": 5.0e-14, "steel": 1.0e-15},
+        fluid_bulk_modulus=1.5e9,
+    )
+    if lossless:
+        rules = dataclasses.replace(
+            rules, hose_expansion={k: 0.0 for k in rules.hose_expansion},
+            fluid_bulk_modulus=math.inf)
+    return dataclasses.replace(rules, **changes)
+
+
+def make_build(
+    master_bore: float = 0.75 * INCH,
+    master_stroke: float = 1.40 * INCH,
+    slave_bore: float | None = 0.875 * INCH,
+    slave_stroke: float = 1.25 * INCH,
+    piston_area: float | None = None,
+    fork: tuple[float, float] | None = (5.6 * INCH, 2.8 * INCH),
+    pedal: tuple[float, float] = (11.0 * INCH, 2.0 * INCH),
+    pad_travel: float = 7.0 * INCH,
+    layout: PedalLayout | None = None,
+    release_load: float = 400 * POUND_FORCE,
+    release_travel: float = 0.30 * INCH,
+    clearance: float = 0.05 * INCH,
+    load_curve: tuple[tuple[float, float], ...] | None = None,
+    hose: str = "braided_ptfe",
+    line_length: float = 36 * INCH,
+    master_rating: float | None = None,
+    slave_rating: float | None = None,
+) -> Build:
+    """A build record built directly as model objects (invented values)."""
+    return Build(
+        id="TS-001",
+        date=None,
+        status="draft",
+        technician=None,
+        vehicle="invented test roadster",
+        gearbox=Gearbox("ZZ-9", None, "none" if fork is None else "rearward"),
+        clutch=Clutch(release_load, release_travel, clearance, load_curve),
+        fork=None if fork is None else Fork(*fork),
+        master=Master(master_bore, master_stroke, master_rating),
+        slave=Slave("concentric" if fork is None else "external", slave_bore, piston_area,
+                    slave_stroke, slave_rating),
+        line=Line(line_length, hose, "DOT 4"),
+        pedal=Pedal(pedal[0], pedal[1], pad_travel, layout=layout),
+    )
+
+
+def square_layout(pad_radius: float, clevis_radius: float, rod: float,
+                  swing: float) -> PedalLayout:
+    """Pedal hanging down from the pivot, pushrod square to the arm at rest (forward)."""
+    return PedalLayout(
+        pivot=(0.0, 0.0),
+        pad=(0.0, -pad_radius),
+        clevis=(0.0, -clevis_radius),
+        pushrod_seat=(rod, -clevis_radius),
+        rotation_to_stop=swing,
+    )

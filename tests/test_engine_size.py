@@ -1,0 +1,252 @@
+"""size_build end to end: trade rules of thumb, work balance, flags on purpose-built cases."""
+from __future__ import annotations
+
+import math
+
+import pytest
+from hypothesis import given, settings, strategies as st
+
+from builder.engine import size_build
+from test_engine_factories import INCH, POUND_FORCE, PSI, make_build, make_rules, square_layout
+
+LOSSLESS = make_rules(lossless=True)
+
+
+def codes(sizing) -> dict[str, str]:
+    return {flag.code: flag.severity for flag in sizing.flags}
+
+
+def test_equal_bores_move_the_slave_as_far_as_the_master():
+    # Common practice, no source: equal bores move the slave as far as the master.
+    s = size_build(make_build(master_bore=0.75 * INCH, slave_bore=0.75 * INCH,
+                              slave_stroke=2 * INCH), LOSSLESS)
+    assert s.ratio_hydraulic == pytest.approx(1.0)
+    assert s.slave_travel == pytest.approx(s.master_stroke_used, rel=1e-12)
+
+
+def test_five_to_one_pedal_turns_100_lb_into_20_lb():
+    # Common practice, no source: a 5:1 pedal turns a 100 lb release into 20 lb at the pad
+    # (equal bores, concentric slave, no friction).
+    build = make_build(pedal=(10 * INCH, 2 * INCH), master_bore=0.75 * INCH,
+                       slave_bore=0.75 * INCH, fork=None, release_load=100 * POUND_FORCE)
+    s = size_build(build, LOSSLESS, efficiency=1.0)
+    assert s.ratio_fork == 1.0 and s.ratio_pedal == pytest.approx(5.0)
+    assert s.effort_ideal / POUND_FORCE == pytest.approx(20.0)
+    assert s.effort_predicted == pytest.approx(s.effort_ideal)
+
+
+def test_seven_tenths_master_into_seven_eighths_slave():
+    # Common practice, no source: a 0.7 in bore, 1.5 in stroke master into a 7/8 in slave
+    # gives a little under 1 in of slave travel (0.96 in lossless; losses take a little).
+    build = make_build(master_bore=0.7 * INCH, master_stroke=1.5 * INCH,
+                       slave_bore=0.875 * INCH, slave_stroke=1.5 * INCH,
+                       pedal=(12 * INCH, 2 * INCH), pad_travel=9.5 * INCH)
+    lossless = size_build(build, LOSSLESS)
+    assert lossless.slave_travel / INCH == pytest.approx(0.96, rel=1e-9)
+    with_losses = size_build(build, make_rules(), efficiency=1.0)
+    assert 0.9 < with_losses.slave_travel / INCH < lossless.slave_travel / INCH
+
+
+def test_master_that_bottoms_early_leaves_a_floor_gap():
+    # Common practice, no source: floor gap = pad travel - master stroke * pedal ratio.
+    build = make_build(pedal=(11 * INCH, 2 * INCH), master_stroke=1.0 * INCH,
+                       pad_travel=7.0 * INCH)
+    s = size_build(build, make_rules())
+    assert s.floor_gap / INCH == pytest.approx(7.0 - 1.0 * 5.5)
+    assert s.master_stroke_used == build.master.stroke
+    assert codes(s)["master-bottoms-early"] == "warn"
+    assert size_build(make_build(pad_travel=5.0 * INCH), make_rules()).floor_gap == 0.0
+
+
+def test_release_point_inverts_the_chain_including_losses():
+    # Volume balance A_m s = A_s x_s + dV (OpenStax "Pascal's Principle"; Merritt for dV)
+    # and pad = R_p s (Shigley, levers): the release point reproduces the needed travel.
+    build = make_build()
+    s = size_build(build, make_rules())
+    stroke = s.pad_travel_to_release / s.ratio_pedal
+    bearing = (s.master_area * stroke - s.losses_volume) / s.slave_area / s.ratio_fork
+    assert bearing == pytest.approx(s.needed_bearing_travel, rel=1e-12)
+    assert s.release_point == pytest.approx(s.pad_travel_to_release / build.pedal.pad_travel)
+    assert s.needed_volume == pytest.approx(s.master_area * stroke)
+    assert s.linkage.ratio_at_release == s.ratio_pedal
+
+
+def test_concentric_slave_with_annular_area():
+    # R_f = 1 without a fork; p = F / A for the given annular area (OpenStax, "Pascal's
+    # Principle").
+    area = 1.9 * INCH**2
+    build = make_build(fork=None, slave_bore=None, piston_area=area, slave_stroke=0.5 * INCH,
+                       release_load=950 * POUND_FORCE)
+    s = size_build(build, make_rules())
+    assert s.ratio_fork == 1.0 and s.slave_area == area
+    assert s.pressure / PSI == pytest.approx(500.0)
+    assert s.bearing_travel == s.slave_travel
+
+
+def test_efficiency_defaults_to_the_shop_rule():
+    # Machine efficiency eta = ideal / actual effort (OpenStax College Physics, "Simple
+    # Machines").
+    s = size_build(make_build(), make_rules(default_efficiency=0.8))
+    assert s.efficiency == 0.8 and s.effort_predicted == pytest.approx(s.effort_ideal / 0.8)
+    assert size_build(make_build(), make_rules(), efficiency=0.7).efficiency == 0.7
+
+
+def _trapezoid(points):
+    return sum((x1 - x0) * (y0 + y1) / 2 for (x0, y0), (x1, y1) in zip(points, points[1:]))
+
+
+def _bearing_work(curve, clearance, reached):
+    """Integral of bearing load over bearing travel, load 0 before the clearance."""
+    from builder.engine.effort import load_at
+    xs = sorted({0.0, clearance, reached, *(x for x, _ in curve if x < reached)})
+    xs = [x for x in xs if x <= reached]
+    points = []
+    for x in xs:
+        if x == clearance and x > 0:
+            points.append((x, 0.0))
+        points.append((x, load_at(curve, clearance, x)))
+    return _trapezoid(points)
+
+
+load_curves = st.lists(
+    st.tuples(st.floats(0.0005, 0.012), st.floats(50.0, 3000.0)), min_size=1, max_size=6,
+    unique_by=lambda point: round(point[0], 6),
+).map(lambda points: ((0.0, 0.0), *sorted(points)))
+
+
+@settings(max_examples=60, deadline=None)
+@given(curve=load_curves,
+       pedal_ratio=st.floats(3.0, 8.0),
+       master_in=st.floats(0.5, 1.0),
+       slave_in=st.floats(0.625, 1.25),
+       fork=st.one_of(st.none(), st.floats(1.2, 3.0)),
+       clearance=st.floats(0.0, 0.003))
+def test_work_balance_pad_equals_bearing(curve, pedal_ratio, master_in, slave_in, fork,
+                                         clearance):
+    # Work balance of an ideal machine (OpenStax College Physics, "Simple Machines";
+    # energy conservation): no losses, efficiency 1, the work put in at the pad equals the
+    # work done at the bearing.
+    build = make_build(
+        load_curve=curve, pedal=(pedal_ratio * 2 * INCH, 2 * INCH),
+        master_bore=master_in * INCH, slave_bore=slave_in * INCH, slave_stroke=4 * INCH,
+        fork=None if fork is None else (fork * 2.5 * INCH, 2.5 * INCH), clearance=clearance,
+        release_load=max(load for _, load in curve))
+    s = size_build(build, LOSSLESS, efficiency=1.0)
+    pad_work = _trapezoid(s.effort_curve)
+    bearing_work = _bearing_work(curve, clearance, s.bearing_travel)
+    assert pad_work == pytest.approx(bearing_work, rel=1e-9, abs=1e-9)
+
+
+def test_work_balance_in_layout_mode():
+    # Work balance of an ideal machine (OpenStax College Physics, "Simple Machines"):
+    # holds with the varying slider-crank ratio too, to the sampling of the plot.
+    curve = ((0.0, 0.0), (0.003, 1700.0), (0.006, 1850.0), (0.010, 1500.0))
+    layout = square_layout(11 * INCH, 2 * INCH, 5 * INCH, math.radians(28))
+    build = make_build(layout=layout, pad_travel=11 * INCH * math.radians(28),
+                       load_curve=curve, clearance=0.001, slave_stroke=4 * INCH)
+    s = size_build(build, LOSSLESS, efficiency=1.0)
+    assert _trapezoid(s.effort_curve) == pytest.approx(
+        _bearing_work(curve, 0.001, s.bearing_travel), rel=2e-3)
+
+
+def test_effort_curve_peaks_at_the_curve_peak_over_the_ratio():
+    # F_pad = F_bearing / R / eta (OpenStax College Physics, "Simple Machines").
+    curve = ((0.0, 0.0), (0.003, 1700.0), (0.006, 1850.0), (0.010, 1500.0))
+    s = size_build(make_build(load_curve=curve, release_load=1850.0), make_rules())
+    assert max(force for _, force in s.effort_curve) == pytest.approx(s.effort_predicted)
+    pads = [pad for pad, _ in s.effort_curve]
+    assert pads == sorted(pads) and pads[0] == 0.0
+
+
+# --- flags, each on a purpose-built case --------------------------------------------
+
+
+def test_a_sound_build_raises_no_flags():
+    assert size_build(make_build(), make_rules()).flags == ()
+
+
+def test_travel_short_fails_and_warns():
+    # Margin = bearing / needed - 1 (DESIGN 4): short -> fail, thin -> warn.
+    short = size_build(make_build(release_travel=0.6 * INCH), make_rules())
+    assert short.margin < 0 and codes(short)["travel-short"] == "fail"
+    assert "will not fully release" in short.flags[0].message
+    assert short.release_point is None and short.linkage.ratio_at_release is None
+    thin = size_build(make_build(release_travel=0.39 * INCH), make_rules())
+    assert 0 <= thin.margin < 0.10 and codes(thin)["travel-short"] == "warn"
+
+
+def test_slave_overtravel():
+    s = size_build(make_build(slave_stroke=0.6 * INCH), make_rules())
+    assert s.slave_overtravel and s.slave_travel == 0.6 * INCH
+    assert codes(s)["slave-overtravel"] == "fail"
+
+
+def test_release_late():
+    s = size_build(make_build(release_travel=0.38 * INCH), make_rules(latest_release_point=0.6))
+    assert s.release_point > 0.6 and codes(s)["release-late"] == "warn"
+
+
+def test_effort_high_and_low():
+    heavy = size_build(make_build(release_load=900 * POUND_FORCE), make_rules())
+    assert codes(heavy)["effort-high"] == "warn"
+    light = size_build(make_build(release_load=100 * POUND_FORCE), make_rules())
+    assert codes(light)["effort-low"] == "warn"
+    assert "lbf" in light.flags[0].message and " N" in light.flags[0].message
+
+
+def test_pressure_over_rating_names_the_cylinder():
+    s = size_build(make_build(master_rating=300 * PSI, slave_rating=2000 * PSI), make_rules())
+    messages = [f.message for f in s.flags if f.code == "pressure-over-rating"]
+    assert len(messages) == 1 and "master's rating of 300 psi" in messages[0]
+    assert "kPa" in messages[0]
+
+
+def test_master_volume_short():
+    s = size_build(make_build(master_stroke=0.5 * INCH, release_travel=0.45 * INCH),
+                   make_rules())
+    assert s.master_swept_volume < s.needed_volume
+    assert codes(s)["master-volume-short"] == "fail"
+
+
+def test_pushrod_off_axis_and_pad_travel_mismatch():
+    # A short pushrod swung far goes off the bore axis; a recorded pad travel far from
+    # r_pad * swing disagrees with the layout.
+    layout = square_layout(11 * INCH, 2 * INCH, 2 * INCH, math.radians(30))
+    s = size_build(make_build(layout=layout, pad_travel=7.0 * INCH), make_rules())
+    assert s.linkage.pushrod_angle_max > math.radians(5)
+    assert codes(s)["pushrod-off-axis"] == codes(s)["pad-travel-mismatch"] == "warn"
+    matched = make_build(layout=layout, pad_travel=11 * INCH * math.radians(30))
+    assert "pad-travel-mismatch" not in codes(size_build(matched, make_rules()))
+
+
+def test_metric_shop_shows_metric_first():
+    s = size_build(make_build(release_load=900 * POUND_FORCE), make_rules(display_units="metric"))
+    assert s.flags[0].message.startswith("Predicted pedal effort 315 N (71 lbf)")
+
+
+def test_flag_numbers_agree_with_pint():
+    # Both unit systems in messages; conversions checked against pint (reference library).
+    import pint
+    from builder.engine import flags
+    ureg = pint.UnitRegistry()
+    rules = make_rules()
+    kpa = ureg.Quantity(1000, "psi").to("kPa").magnitude
+    assert flags.pressure(ureg.Quantity(1000, "psi").to("Pa").magnitude, rules) == \
+        f"1000 psi ({kpa:.0f} kPa)"
+    newton = ureg.Quantity(30, "lbf").to("N").magnitude
+    assert flags.force(newton, rules) == f"30 lbf ({newton:.0f} N)"
+    assert flags.length(ureg.Quantity(7, "mm").to("m").magnitude, rules) == "0.28 in (7.0 mm)"
+    ml = ureg.Quantity(1, "in**3").to("mL").magnitude
+    assert flags.volume(ml * 1e-6, rules) == f"1.000 in^3 ({ml:.2f} mL)"
+
+
+def test_engine_imports_no_pint_yaml_mkdocs_or_numpy():
+    # Project rule (DESIGN 2): the engine is pure functions on SI floats.
+    import pathlib
+    import subprocess
+    import sys
+    code = ("import sys, builder.engine; "
+            "print(sorted(m for m in ('pint', 'yaml', 'mkdocs', 'numpy') if m in sys.modules))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True, cwd=pathlib.Path(__file__).parents[1]).stdout.strip()
+    assert out == "[]"

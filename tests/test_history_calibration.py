@@ -1,0 +1,250 @@
+"""Deltas, calibration, leave-one-out and calibrated predictions on invented histories.
+
+References: numpy (median, percentile), scipy.stats.median_abs_deviation; hand
+calculations written out beside the checks.
+"""
+import dataclasses
+
+import numpy as np
+import pytest
+import scipy.stats
+
+from builder.history import Deltas, calibrate, deltas
+from builder.history.calibration import shrink_weight
+from test_history_factories import history, make_build, make_sizing
+
+
+# ---- deltas -------------------------------------------------------------------------------
+
+def test_deltas_are_measured_minus_computed_over_computed():
+    build = make_build("QX-001", effort=132.0, slave_travel=0.019, floor_gap=0.030)
+    sizing = make_sizing("QX-001", effort_predicted=120.0, slave_travel=0.020, floor_gap=0.025)
+    result = deltas(build, sizing)
+    # by hand: (132 - 120) / 120 = 0.10; (19 - 20) / 20 = -0.05; (30 - 25) / 25 = 0.20
+    assert result.effort == pytest.approx(0.10)
+    assert result.slave_travel == pytest.approx(-0.05)
+    assert result.floor_gap == pytest.approx(0.20)
+
+
+def test_deltas_unknown_when_not_measured_or_computed_zero():
+    sizing = make_sizing("QX-001", floor_gap=0.0)
+    assert deltas(make_build("QX-001", measured=False), sizing) == Deltas(None, None, None)
+    result = deltas(make_build("QX-001", effort=None, floor_gap=0.01), sizing)
+    assert result.effort is None  # not measured
+    assert result.floor_gap is None  # computed 0: no relative delta
+    assert result.slave_travel == pytest.approx(0.0)
+
+
+# ---- which builds count, medians and MADs ---------------------------------------------------
+
+def test_only_measured_and_verified_builds_with_an_effort_count():
+    pairs = history({"QX-5": [0.80, 0.85, 0.90]})
+    extra = [
+        make_build("QX-010", status="rejected", effort=300.0),
+        make_build("QX-011", status="draft", measured=False),
+        make_build("QX-012", status="verified", effort=100 / 0.95),
+        make_build("QX-013", status="measured", effort=None, slave_travel=0.030),
+    ]
+    pairs += [(b, make_sizing(b.id)) for b in extra]
+    calibration = calibrate(pairs)
+    assert calibration.shop.n == 4  # three measured and one verified with an effort
+    assert calibration.shop.n_travel == 5  # QX-013 adds a measured slave travel
+    # numpy.median of [0.80, 0.85, 0.90, 0.95]
+    assert calibration.shop.efficiency_median == pytest.approx(np.median([0.80, 0.85, 0.90, 0.95]))
+
+
+def test_group_median_and_mad_agree_with_numpy_and_scipy():
+    values = {"QX-5": [0.78, 0.83, 0.85, 0.86, 0.91, 0.62],
+              "TR-4B": [0.70, 0.74, 0.69, 0.73]}
+    factors = {"QX-5": [0.93, 0.95, 0.91, 0.97, 0.94, 0.96], "TR-4B": [0.88, 0.90, 0.86, 0.93]}
+    calibration = calibrate(history(values, travel_factors=factors))
+    everything = values["QX-5"] + values["TR-4B"]
+    # numpy.median and scipy.stats.median_abs_deviation(scale="normal")
+    assert calibration.shop.efficiency_median == pytest.approx(np.median(everything))
+    assert calibration.shop.efficiency_mad == pytest.approx(
+        scipy.stats.median_abs_deviation(everything, scale="normal"))
+    for family in values:
+        group = calibration.families[family]
+        assert group.n == len(values[family])
+        assert group.efficiency_median == pytest.approx(np.median(values[family]))
+        assert group.efficiency_mad == pytest.approx(
+            scipy.stats.median_abs_deviation(values[family], scale="normal"))
+        assert group.travel_factor_median == pytest.approx(np.median(factors[family]))
+        assert group.travel_factor_mad == pytest.approx(
+            scipy.stats.median_abs_deviation(factors[family], scale="normal"))
+
+
+# ---- leave-one-out ----------------------------------------------------------------------------
+
+def test_leave_one_out_errors_match_a_hand_calculation():
+    # One family, efficiencies 0.80, 0.85, 0.90, 0.95, ideal effort 100 N, measured = 100 / e.
+    # Without each build the median of the other three is 0.90, 0.90, 0.85, 0.85
+    # (family and shop-wide are the same set, so shrinking changes nothing), so
+    # r = e_loo / e - 1 = 0.9/0.8 - 1 = 0.125, 0.9/0.85 - 1 = 0.0588235,
+    #     0.85/0.9 - 1 = -0.0555556, 0.85/0.95 - 1 = -0.1052632.
+    # |r| sorted: 0.0555556, 0.0588235, 0.1052632, 0.125
+    # median |r| = (0.0588235 + 0.1052632) / 2 = 0.0820433
+    # 90th percentile (linear, position 0.9 * 3 = 2.7): 0.1052632 + 0.7 * 0.0197368 = 0.1190789
+    calibration = calibrate(history({"QX-5": [0.80, 0.85, 0.90, 0.95]}))
+    for group in (calibration.shop, calibration.families["QX-5"]):
+        assert group.residuals == pytest.approx(
+            [-0.1052632, -0.0555556, 0.0588235, 0.125], abs=1e-7)
+        assert group.loo_median_abs_err == pytest.approx(0.0820433, abs=1e-7)
+        assert group.loo_p90_abs_err == pytest.approx(0.1190789, abs=1e-7)
+
+
+def test_a_build_in_the_history_is_predicted_without_itself():
+    # Families A: 0.80, 0.90 and B: 0.70, 0.72, 0.74; ideal effort 100 N.
+    # Predicting A-001 (e = 0.80) without itself: family A keeps one build (0.90), weight
+    # w(1) = 1 / (1 + 3 * (1 - 1/10)) = 1 / 3.7 = 0.2702703; shop-wide without it:
+    # 0.90, 0.70, 0.72, 0.74 -> median (0.72 + 0.74) / 2 = 0.73.
+    # e = 0.2702703 * 0.90 + 0.7297297 * 0.73 = 0.7759459 -> effort 100 / 0.7759459 = 128.8749 N
+    pairs = history({"AA": [0.80, 0.90], "BB": [0.70, 0.72, 0.74]})
+    calibration = calibrate(pairs)
+    build, sizing = pairs[0]
+    assert build.id == "AA-001"
+    prediction = calibration.predict(build, sizing)
+    assert prediction.effort == pytest.approx(128.8749, abs=1e-4)
+    assert prediction.n_builds == 4  # the other four builds, never itself
+    # the same build as a new proposal (another id) sees all five builds:
+    # w(2) = 2 / (2 + 3 * 0.8) = 0.4545455; family median 0.85, shop median 0.74
+    # e = 0.4545455 * 0.85 + 0.5454545 * 0.74 = 0.79 -> 100 / 0.79 = 126.5823 N
+    proposal = make_build("AA-900", family="AA", measured=False)
+    assert calibration.predict(proposal, sizing).effort == pytest.approx(126.5823, abs=1e-4)
+
+
+def test_leave_one_out_shortcut_equals_recalibrating_without_each_build():
+    rng = np.random.default_rng(11)
+    pairs = history({"QX-5": list(rng.normal(0.85, 0.04, 12)),  # a family standing alone
+                     "TR-4B": list(rng.normal(0.75, 0.04, 4)),  # a thin one
+                     "KM-2": [0.70]})  # one build
+    calibration = calibrate(pairs)
+    for build, sizing in pairs:
+        others = [p for p in pairs if p[0].id != build.id]
+        brute = calibrate(others).predict(build, sizing)  # refit from scratch without it
+        assert calibration.predict(build, sizing).effort == pytest.approx(brute.effort, rel=1e-12)
+    # a recorded build checked again with its gearbox family changed: still left out
+    build, sizing = pairs[0]
+    moved = dataclasses.replace(build, gearbox=dataclasses.replace(build.gearbox, family="TR-4B"))
+    brute = calibrate(pairs[1:]).predict(moved, sizing)
+    assert calibration.predict(moved, sizing).effort == pytest.approx(brute.effort, rel=1e-12)
+
+
+# ---- shrinkage --------------------------------------------------------------------------------
+
+def test_shrink_weight_grows_to_one_at_ten_builds():
+    weights = [shrink_weight(n) for n in range(0, 12)]
+    assert weights[0] == 0.0
+    assert all(a < b for a, b in zip(weights[:10], weights[1:11]))
+    assert weights[10] == weights[11] == 1.0
+    assert weights[1] == pytest.approx(1 / 3.7)  # by hand: 1 / (1 + 3 * 0.9)
+
+
+def test_thin_family_is_pulled_toward_shop_wide():
+    pairs = history({"QX-5": [0.85, 0.86, 0.84, 0.85, 0.87, 0.83, 0.85, 0.86],
+                     "TR-4B": [0.60, 0.62]})
+    calibration = calibrate(pairs)
+    thin = calibration.families["TR-4B"]
+    shop = calibration.shop.efficiency
+    assert thin.weight == pytest.approx(2 / (2 + 3 * 0.8))  # by hand: 0.4545
+    assert thin.efficiency_median == pytest.approx(0.61)
+    assert thin.efficiency_median < thin.efficiency < shop
+    assert thin.efficiency == pytest.approx(thin.weight * 0.61 + (1 - thin.weight) * shop)
+
+
+def test_family_with_ten_consistent_builds_is_predicted_from_its_own_history():
+    own = [0.70, 0.71, 0.69, 0.70, 0.72, 0.70, 0.68, 0.71, 0.70, 0.69, 0.71, 0.70]
+    pairs = history({"TR-4B": own, "QX-5": [0.90] * 30})
+    calibration = calibrate(pairs)
+    proposal = make_build("TR-900", family="TR-4B", measured=False)
+    sizing = make_sizing("TR-900", effort_ideal=100.0)
+    own_prediction = 100.0 / np.median(own)  # numpy.median of the family's own history
+    prediction = calibration.predict(proposal, sizing)
+    assert prediction.effort == pytest.approx(own_prediction, rel=0.03)
+    assert prediction.n_builds == len(own)
+    # and each of its builds, predicted without itself
+    for build, build_sizing in pairs[: len(own)]:
+        effort = calibration.predict(build, build_sizing).effort
+        assert effort == pytest.approx(own_prediction, rel=0.03)
+
+
+def test_one_outlier_cannot_swing_the_estimate():
+    steady = [0.84, 0.85, 0.86, 0.85, 0.84, 0.86, 0.85]
+    before = calibrate(history({"QX-5": steady})).families["QX-5"].efficiency
+    after = calibrate(history({"QX-5": steady + [0.20]})).families["QX-5"].efficiency
+    assert after == pytest.approx(before, rel=0.01)
+    assert np.mean(steady + [0.20]) < 0.78  # the mean would have moved by more than 8 %
+
+
+# ---- predictions --------------------------------------------------------------------------
+
+def test_not_enough_history_below_three_builds():
+    pairs = history({"QX-5": [0.80, 0.85]})
+    calibration = calibrate(pairs)
+    proposal = make_build("QX-900", measured=False)
+    prediction = calibration.predict(proposal, make_sizing("QX-900"))
+    assert prediction.effort is None and prediction.interval is None
+    assert prediction.note == "not enough history (2 builds)"
+    # three builds: a proposal is predicted, but each of them sees only the other two
+    pairs = history({"QX-5": [0.80, 0.85, 0.90]})
+    calibration = calibrate(pairs)
+    assert calibration.predict(proposal, make_sizing("QX-900")).effort == pytest.approx(100 / 0.85)
+    assert calibration.predict(*pairs[0]).note == "not enough history (2 builds)"
+
+
+def test_interval_from_family_residual_percentiles():
+    own = [0.78, 0.80, 0.83, 0.85, 0.86, 0.88, 0.90]
+    pairs = history({"QX-5": own, "TR-4B": [0.70, 0.72, 0.75]})
+    calibration = calibrate(pairs)
+    residuals = np.array(calibration.families["QX-5"].residuals)
+    proposal = make_build("QX-900", measured=False)
+    prediction = calibration.predict(proposal, make_sizing("QX-900"))
+    # 10th and 90th percentiles by numpy.percentile (linear) of the family residuals
+    low, high = np.percentile(residuals, [10, 90])
+    assert prediction.interval == pytest.approx(
+        (prediction.effort * (1 + low), prediction.effort * (1 + high)))
+    assert "family" in prediction.basis and prediction.note is None
+    # a build of the family leaves its own residual out of its interval
+    build, sizing = pairs[2]
+    mine = calibration.predict(build, sizing)
+    loo_residual = 100.0 / own[2] / mine.effort - 1  # measured / predicted - 1
+    others = np.delete(residuals, np.argmin(np.abs(residuals - loo_residual)))
+    low, high = np.percentile(others, [10, 90])
+    assert mine.interval == pytest.approx((mine.effort * (1 + low), mine.effort * (1 + high)))
+
+
+def test_thin_family_interval_comes_from_shop_wide_residuals():
+    pairs = history({"QX-5": [0.78, 0.80, 0.83, 0.85, 0.86, 0.88], "TR-4B": [0.70, 0.72]})
+    calibration = calibrate(pairs)
+    proposal = make_build("TR-900", family="TR-4B", measured=False)
+    prediction = calibration.predict(proposal, make_sizing("TR-900"))
+    low, high = np.percentile(calibration.shop.residuals, [10, 90])  # numpy.percentile
+    assert prediction.interval == pytest.approx(
+        (prediction.effort * (1 + low), prediction.effort * (1 + high)))
+    assert "shop-wide" in prediction.basis
+
+
+def test_unknown_family_uses_shop_wide_value():
+    calibration = calibrate(history({"QX-5": [0.80, 0.85, 0.90, 0.82]}))
+    proposal = make_build("ZZ-900", family="ZZ-1", measured=False)
+    prediction = calibration.predict(proposal, make_sizing("ZZ-900"))
+    assert prediction.effort == pytest.approx(100 / np.median([0.80, 0.85, 0.90, 0.82]))
+    assert prediction.n_builds == 4
+    assert "no other ZZ-1 builds" in prediction.basis
+
+
+def test_calibrated_slave_travel_uses_the_travel_factor():
+    factors = {"QX-5": [0.90, 0.92, 0.94]}
+    calibration = calibrate(history({"QX-5": [0.80, 0.85, 0.90]}, travel_factors=factors))
+    proposal = make_build("QX-900", measured=False)
+    prediction = calibration.predict(proposal, make_sizing("QX-900", slave_travel=0.020))
+    # one family: shrunk and shop-wide medians agree, 0.92 (numpy.median)
+    assert prediction.slave_travel == pytest.approx(0.020 * np.median(factors["QX-5"]))
+
+
+def test_empty_history():
+    calibration = calibrate([])
+    assert calibration.shop.n == 0 and calibration.shop.efficiency is None
+    assert calibration.families == {}
+    prediction = calibration.predict(make_build("QX-900", measured=False), make_sizing("QX-900"))
+    assert prediction.note == "not enough history (0 builds)"

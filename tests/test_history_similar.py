@@ -1,0 +1,144 @@
+"""Similar builds: distance, order, candidates and the "what differs" wording."""
+import math
+
+import numpy as np
+import pytest
+
+from builder.history import SimilarityIndex, distance_description
+from builder.history.similar import CATEGORY_WEIGHTS, NUMERIC_SCALE, differences
+from builder.units import show_one
+from test_history_factories import INCH, make_build, make_sizing
+
+
+def pair(build_id, sizing_kwargs=None, **build_kwargs):
+    return make_build(build_id, **build_kwargs), make_sizing(build_id, **(sizing_kwargs or {}))
+
+
+def test_identical_build_is_at_distance_zero():
+    build, sizing = pair("QX-001")
+    index = SimilarityIndex([(build, sizing)])
+    [found] = index.query(make_build("QX-900", measured=False), make_sizing("QX-900"))
+    assert found.id == "QX-001" and found.distance == 0.0 and found.differs == ()
+
+
+def test_each_term_adds_its_weight():
+    base = pair("QX-001")
+    index = SimilarityIndex([base])
+    # a different family adds 1.0; a 10 % larger slave bore adds ln(1.1)/ln(1.1) = 1.0
+    other_family = make_build("QX-900", family="TR-4B")
+    assert index.distances(other_family, base[1])[0] == pytest.approx(1.0)
+    bigger = make_build("QX-901", slave_bore=0.875 * INCH * 1.1)
+    assert index.distances(bigger, base[1])[0] == pytest.approx(1.0)
+    # pedal ratio 6.1 against 5.4: ln(6.1/5.4)/ln(1.1) = 1.27856 (math.log by hand)
+    steeper = make_sizing("QX-902", ratio_pedal=6.1)
+    assert index.distances(base[0], steeper)[0] == pytest.approx(
+        math.log(6.1 / 5.4) / math.log(1.1))
+
+
+def test_vectorised_distance_matches_a_plain_loop():
+    rng = np.random.default_rng(7)
+    pairs = []
+    for n in range(60):
+        kind = "concentric" if n % 5 == 0 else "external"
+        build = make_build(
+            f"RN-{n:03d}", family=f"F{n % 4}", fork_tip="none" if kind == "concentric" else
+            ("forward", "rearward")[n % 2], slave_kind=kind,
+            master_bore=rng.uniform(0.6, 1.0) * INCH,
+            slave_bore=None if kind == "concentric" else rng.uniform(0.7, 1.1) * INCH,
+            piston_area=rng.uniform(1.0e-3, 1.4e-3) if kind == "concentric" else None,
+            release_load=rng.uniform(1200, 2600))
+        pairs.append((build, make_sizing(build.id, ratio_pedal=rng.uniform(4.5, 7),
+                                         ratio_overall=rng.uniform(10, 30))))
+    index = SimilarityIndex(pairs)
+    probe_build, probe_sizing = pairs[17]
+
+    def kinds(b):
+        return b.gearbox.family, b.gearbox.fork_tip_moves, b.slave.kind
+
+    def plain(build, sizing):
+        total = sum(w * (a != b) for w, a, b in zip(
+            CATEGORY_WEIGHTS.values(), kinds(build), kinds(probe_build)))
+        # the slave is compared by equivalent bore; area goes as bore^2, so half its log
+        for a, b, scale in ((build.master.bore, probe_build.master.bore, 1),
+                            (build.slave.area, probe_build.slave.area, 2),
+                            (sizing.ratio_pedal, probe_sizing.ratio_pedal, 1),
+                            (sizing.ratio_overall, probe_sizing.ratio_overall, 1),
+                            (build.clutch.release_load, probe_build.clutch.release_load, 1)):
+            total += abs(math.log(a / b)) / (scale * NUMERIC_SCALE)
+        return total
+
+    expected = [plain(b, s) for b, s in pairs]
+    np.testing.assert_allclose(index.distances(probe_build, probe_sizing), expected, atol=1e-9)
+    found = index.query(probe_build, probe_sizing, k=8, exclude_id=probe_build.id)
+    ranked = sorted((d, b.id) for d, (b, _) in zip(expected, pairs) if b.id != probe_build.id)[:8]
+    assert [f.id for f in found] == [i for _, i in ranked]
+
+
+def test_nearest_first_ties_by_id_and_exclusion():
+    pairs = [
+        pair("QX-004", slave_bore=0.75 * INCH),  # 15 % smaller slave bore
+        pair("QX-003"),  # identical
+        pair("QX-002", family="TR-4B"),  # 1.0 away
+        pair("QX-001", family="TR-4B"),  # 1.0 away, same as QX-002: id breaks the tie
+    ]
+    index = SimilarityIndex(pairs)
+    probe, sizing = pair("QX-900")
+    found = index.query(probe, sizing, k=3)
+    assert [f.id for f in found] == ["QX-003", "QX-001", "QX-002"]
+    assert [f.distance for f in found] == sorted(f.distance for f in found)
+    assert [f.id for f in index.query(probe, sizing, k=3, exclude_id="QX-003")] == [
+        "QX-001", "QX-002", "QX-004"]
+    assert len(index.query(probe, sizing, k=10, exclude_id="QX-003")) == 3
+
+
+def test_candidates_have_a_measured_section_rejected_included():
+    pairs = [pair("QX-001", status="draft", measured=False),
+             pair("QX-002", status="rejected", effort=300.0, outcome="dragged at idle"),
+             pair("QX-003", status="verified"),
+             pair("QX-004", status="measured", effort=None)]
+    index = SimilarityIndex(pairs)
+    found = index.query(*pair("QX-900"), k=10)
+    assert sorted(f.id for f in found) == ["QX-002", "QX-003", "QX-004"]
+    rejected = next(f for f in found if f.id == "QX-002")
+    assert (rejected.status, rejected.measured_effort, rejected.outcome) == (
+        "rejected", 300.0, "dragged at idle")
+    assert rejected.measured_slave_travel == pytest.approx(0.020)
+
+
+def test_empty_index():
+    assert SimilarityIndex([]).query(*pair("QX-900")) == []
+
+
+def test_differs_wording():
+    other = make_build("QX-001", family="TR-4B", slave_bore=0.875 * INCH)
+    build = make_build("QX-900", family="QX-5", slave_bore=0.750 * INCH)
+    words = differences(other, make_sizing("QX-001", ratio_pedal=6.1),
+                        build, make_sizing("QX-900", ratio_pedal=5.4))
+    # 0.875 / 0.750 - 1 = +16.7 % and 6.1 / 5.4 - 1 = +13.0 % (by hand); quantities are
+    # written by builder.units.show_one, tested with the units
+    bores = " vs ".join(show_one(d * INCH, "length", "imperial") for d in (0.875, 0.75))
+    assert bores == "0.875 in vs 0.75 in"
+    assert words == ("family TR-4B vs QX-5", f"slave bore {bores} (+17 %)",
+                     "pedal ratio 6.1 vs 5.4 (+13 %)")
+    metric = differences(other, make_sizing("QX-001"), build, make_sizing("QX-900"), "metric")
+    # 0.875 in = 22.225 mm, 0.750 in = 19.05 mm (1 in = 25.4 mm exactly, NIST SP 811)
+    assert f"slave bore 22.2 mm vs {show_one(0.75 * INCH, 'length', 'metric')} (+17 %)" in metric
+
+
+def test_differs_names_piston_area_and_categories():
+    other = make_build("QX-001", slave_kind="concentric", fork_tip="none",
+                       slave_bore=None, piston_area=1.9 * INCH**2, release_load=1900.0)
+    build = make_build("QX-900", release_load=1800.0)
+    words = differences(other, make_sizing("QX-001"), build, make_sizing("QX-900"))
+    # 7/8 in bore: pi/4 * 0.875^2 = 0.601 in^2; 1.9/0.601 - 1 = +216 %; 1900/1800 - 1 = +6 %
+    assert words[:2] == ("fork tip none vs rearward", "slave kind concentric vs external")
+    assert "slave piston area 1.9 in^2 vs 0.601 in^2 (+216 %)" in words
+    assert any(w.startswith("release load") and w.endswith("(+6 %)") for w in words)
+
+
+def test_distance_description_states_the_weights_and_scale():
+    text = distance_description()
+    assert all(weight == 1.0 for weight in CATEGORY_WEIGHTS.values())
+    assert NUMERIC_SCALE == math.log(1.10)
+    assert "ln(1.10)" in text and "1.0 when the gearbox family differs" in text
+    assert "distance 0" in text

@@ -1,0 +1,185 @@
+"""builder.units against outside references.
+
+Sources: NIST Special Publication 811 (2008), Appendix B.8 (inch = 2.54 E-02 m exactly,
+pound-force = 4.448 222 E+00 N from the exact 4.4482216152605 N, psi = 6.894 757 E+03 Pa,
+degree = 1.745 329 E-02 rad); the pint library (0.25) as the reference unit registry;
+Python's fractions module for exact mixed-fraction arithmetic.
+"""
+from __future__ import annotations
+
+import datetime as dt
+import math
+import subprocess
+import sys
+from fractions import Fraction
+
+import pint
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+
+from builder import units
+from builder.units import QuantityError, check_range, parse_quantity, show, show_one
+
+UREG = pint.UnitRegistry()
+
+
+def pint_si(magnitude: float, unit: str) -> float:
+    """The reference: pint's value of `magnitude unit` in SI base units."""
+    return UREG.Quantity(magnitude, unit).to_base_units().magnitude
+
+
+def test_exact_definitions_nist_sp811():
+    # NIST SP 811 B.8: 1 in = 0.0254 m exactly; 1 lbf = 4.4482216152605 N exactly.
+    assert parse_quantity("1 in", "length") == 0.0254
+    assert parse_quantity("25.4 mm", "length") == pytest.approx(0.0254, rel=1e-15)
+    assert parse_quantity("1 lbf", "force") == 4.4482216152605
+    # NIST SP 811 B.8: 1 psi = 6.894 757 E+03 Pa (lbf / in^2 exactly).
+    assert parse_quantity("1 psi", "pressure") == pytest.approx(6894.757293168, rel=1e-12)
+    assert parse_quantity("1 psi", "pressure") == pytest.approx(6.894757e3, rel=1e-7)
+    # NIST SP 811 B.8: 1 degree = 1.745 329 E-02 rad (pi / 180).
+    assert parse_quantity("1 deg", "angle") == pytest.approx(1.745329e-2, rel=1e-6)
+
+
+# (text, dimension, exact magnitude, unit as pint spells it)
+SPELLINGS = [
+    ("7/8 in", "length", Fraction(7, 8), "inch"),
+    ("1-1/8 in", "length", Fraction(9, 8), "inch"),
+    ("1 1/8 in", "length", Fraction(9, 8), "inch"),
+    ("0.875in", "length", Fraction(7, 8), "inch"),
+    (".875 in", "length", Fraction(7, 8), "inch"),
+    ("22.2 mm", "length", Fraction(222, 10), "millimeter"),
+    ("1e-3 m", "length", Fraction(1, 1000), "meter"),
+    ("2.5E1 mm", "length", Fraction(25), "millimeter"),
+    ("410 lbf", "force", Fraction(410), "pound_force"),
+    ("1.9 kN", "force", Fraction(19, 10), "kilonewton"),
+    ("1500 psi", "pressure", Fraction(1500), "psi"),
+    ("8.3 MPa", "pressure", Fraction(83, 10), "megapascal"),
+    ("12 bar", "pressure", Fraction(12), "bar"),
+    ("1.7 GPa", "pressure", Fraction(17, 10), "gigapascal"),
+    ("30 deg", "angle", Fraction(30), "degree"),
+    ("1.9 in^2", "area", Fraction(19, 10), "inch ** 2"),
+    ("1226 mm^2", "area", Fraction(1226), "millimeter ** 2"),
+    ("0.3 mL/m/MPa", "hose_expansion", Fraction(3, 10), "milliliter / meter / megapascal"),
+    ("8 mL", "volume", Fraction(8), "milliliter"),
+    ("2 inch", "length", Fraction(2), "inch"),  # not pre-seeded: resolved by pint
+    ("3 ft", "length", Fraction(3), "foot"),
+]
+
+
+@pytest.mark.parametrize("text, dimension, magnitude, pint_unit", SPELLINGS)
+def test_spellings_against_pint(text, dimension, magnitude, pint_unit):
+    # Reference: pint's SI value of the exactly parsed magnitude (fractions module).
+    assert parse_quantity(text, dimension) == pytest.approx(pint_si(float(magnitude), pint_unit), rel=1e-12)
+
+
+def test_pint_alone_misreads_mixed_fraction():
+    # Why we parse magnitudes ourselves (DESIGN section 3): pint reads "1 1/16 in" as 1 * 1/16 in.
+    assert UREG.Quantity("1 1/16 in").to("inch").magnitude == pytest.approx(0.0625)
+    assert parse_quantity("1 1/16 in", "length") == pytest.approx(0.0254 * 17 / 16, rel=1e-15)
+
+
+@pytest.mark.parametrize("unit", sorted(units.SEEDED_UNITS))
+def test_each_seeded_factor_matches_pint(unit):
+    factor, dimension = units.SEEDED_UNITS[unit]
+    reference = UREG.Quantity(1.0, "percent" if unit == "%" else unit).to_base_units()
+    assert factor == pytest.approx(reference.magnitude, rel=1e-12)
+    wanted = units.DIMENSIONS[dimension][0]
+    assert reference.dimensionality == UREG.Quantity(1.0, wanted).dimensionality
+
+
+def test_seeded_units_never_import_pint():
+    code = (
+        "import sys, builder.units as u\n"
+        "for t, d in [('7/8 in','length'), ('410 lbf','force'), ('1500 psi','pressure'),"
+        " ('30 deg','angle'), ('1.9 in^2','area'), ('0.31 mL/m/MPa','hose_expansion')]:\n"
+        "    u.parse_quantity(t, d)\n"
+        "assert 'pint' not in sys.modules\n"
+    )
+    subprocess.run([sys.executable, "-c", code], check=True, cwd=str(_repo()))
+
+
+def _repo():
+    from pathlib import Path
+
+    return Path(__file__).resolve().parents[1]
+
+
+def test_unseen_unit_is_resolved_once_and_cached():
+    parse_quantity("4 inches", "length")
+    assert units._units["inches"] == pytest.approx((0.0254, "length"))
+
+
+def test_fraction_accepts_percent_or_plain_number():
+    assert parse_quantity("10 %", "fraction") == pytest.approx(0.10)
+    assert parse_quantity("0.85", "fraction") == pytest.approx(0.85)
+    assert parse_quantity(0.85, "fraction") == pytest.approx(0.85)
+
+
+def test_signed_values_only_when_asked():
+    assert parse_quantity("-60 mm", "length", signed=True) == pytest.approx(-0.06)
+    with pytest.raises(QuantityError, match="zero or more"):
+        parse_quantity("-7/8 in", "length")
+
+
+@pytest.mark.parametrize(
+    "value, dimension, expected",
+    [
+        ("410 lbf", "length", "expected a length .* found '410 lbf', which is a force"),
+        ("3/4 in", "force", "expected a force .* which is a length"),
+        ("22", "length", "found '22' with no unit"),
+        (22, "length", "bare number 22 with no unit"),
+        (22.5, "pressure", "expected a pressure .* bare number 22.5"),
+        ("7 furlongz", "length", "unknown unit 'furlongz'"),
+        ("7 2 in", "length", "'2 in' is not a unit"),
+        ("NaN in", "length", "does not start with a number"),
+        ("inf psi", "pressure", "does not start with a number"),
+        ("1e999 in", "length", "not a finite number"),
+        ("1/0 in", "length", "divides by zero"),
+        ("5 m/s", "length", r"which is a quantity of \[length\] / \[time\]"),
+        ("20 degC", "angle", "expected an angle"),
+        ("30 %", "angle", "which is a fraction"),
+        (True, "length", "found true"),
+        (None, "force", "found nothing"),
+        (dt.date(2025, 3, 14), "length", "found a date"),
+        (["1 in"], "length", "found a list"),
+        ("", "length", "does not start with a number"),
+    ],
+)
+def test_errors_name_expected_dimension_and_what_was_found(value, dimension, expected):
+    with pytest.raises(QuantityError, match=expected):
+        parse_quantity(value, dimension)
+
+
+def test_check_range_message_shows_both_systems():
+    with pytest.raises(QuantityError) as error:
+        check_range(1.905, 0.003, 0.060, "length", "75 in")
+    assert "75 in is outside the plausible range 0.118 in (3 mm) to 2.362 in (60 mm)" in str(error.value)
+    check_range(0.022225, 0.003, 0.060, "length", "7/8 in")
+
+
+def test_show_both_systems():
+    # 7/8 in = 22.225 mm (exact, NIST SP 811); 410 lbf = 1823.77 N; 1500 psi = 10342.1 kPa.
+    assert show(0.022225, "length") == "0.875 in (22.2 mm)"
+    assert show(0.022225, "length", "metric") == "22.2 mm (0.875 in)"
+    assert show(410 * 4.4482216152605, "force") == "410 lbf (1824 N)"
+    assert show(1500 * 6894.757293168, "pressure") == "1500 psi (10342 kPa)"
+    assert show(math.radians(30), "angle") == "30 deg"
+    assert show_one(1.9 * 0.0254**2, "area", "imperial") == "1.9 in^2"
+    assert show_one(8e-6, "volume", "metric") == "8 mL"
+    assert show_one(0.1, "fraction", "metric") == "10 %"
+    assert show_one(0.0, "length", "metric") == "0 mm"
+
+
+@given(
+    whole=st.integers(0, 40),
+    numerator=st.integers(0, 63),
+    denominator=st.sampled_from([2, 4, 8, 16, 32, 64]),
+    joiner=st.sampled_from([" ", "-"]),
+)
+def test_mixed_fractions_exact(whole, numerator, denominator, joiner):
+    # Reference: exact rational arithmetic (fractions.Fraction) times 0.0254 m (NIST SP 811).
+    numerator %= denominator
+    text = f"{whole}{joiner}{numerator}/{denominator} in" if whole else f"{numerator}/{denominator} in"
+    expected = float(Fraction(whole) + Fraction(numerator, denominator)) * 0.0254
+    assert parse_quantity(text, "length") == pytest.approx(expected, rel=1e-15, abs=1e-18)
