@@ -192,3 +192,7 @@ def site_serve(ctx: Context, port: int) -> None:
     from builder.site import serve
 
     _run(lambda: serve(ctx.records, site_src=_site_src(ctx.records), port=port))
+
+
+if __name__ == "__main__":
+    main()

@@ -248,3 +248,18 @@ def test_empty_history():
     assert calibration.families == {}
     prediction = calibration.predict(make_build("QX-900", measured=False), make_sizing("QX-900"))
     assert prediction.note == "not enough history (0 builds)"
+
+
+def test_prior_builds_follow_within_and_between_family_spread():
+    # Gelman et al., Bayesian Data Analysis, 3rd ed., sec. 5.4: weight n / (n + sigma^2/tau^2).
+    from builder.history.calibration import MIN_PRIOR_BUILDS, PRIOR_BUILDS, prior_builds
+
+    tight = np.array([0.80, 0.801, 0.799, 0.90, 0.901, 0.899, 0.70, 0.701, 0.699])
+    members = {"A": np.arange(0, 3), "B": np.arange(3, 6), "C": np.arange(6, 9)}
+    # families far apart, builds consistent: the shop-wide value is worth little
+    assert prior_builds(tight, members) == MIN_PRIOR_BUILDS
+    scattered = np.array([0.70, 0.90, 0.80, 0.72, 0.88, 0.80, 0.71, 0.89, 0.81])
+    # families alike, builds scattered: the most conservative prior
+    assert prior_builds(scattered, members) == PRIOR_BUILDS
+    # fewer than three families with two or more builds: no estimate of tau, default prior
+    assert prior_builds(tight[:6], {"A": np.arange(0, 3), "B": np.arange(3, 6)}) == PRIOR_BUILDS

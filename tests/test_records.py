@@ -264,7 +264,10 @@ MISTAKES = [
      "bearing travel must increase"),
     ("  kind: external", "  kind: external\n  piston_area: 1.9 in^2", "slave", "slave:",
      "either bore or piston_area, not both"),
-    ("  pivot_to_pad: 11.25 in\n  pivot_to_clevis: 2.10 in\n", "", "pedal.pivot_to_pad", "pedal:", "missing"),
+    ("  pivot_to_pad: 11.25 in\n  pivot_to_clevis: 2.10 in\n", "", "pedal.pivot_to_pad", "pedal:",
+     "missing key 'pivot_to_pad' \\(or give a layout\\)"),
+    ("  kind: external\n  bore: 7/8 in", "  kind: external", "slave.bore", "slave:", r"missing key 'bore' \(or piston_area\)"),
+    ("clevis: [-8 mm, -53 mm]", "clevis: [0 mm, 0.5 mm]", "pedal.layout.clevis", "clevis:", "within 1 mm of pivot"),
     ("  release_travel: 0.32 in", "  release_travel: 0.32 in\n  release_travel: 0.3 in", "clutch.release_travel",
      "release_travel: 0.3 in", "duplicate key 'release_travel'"),
 ]

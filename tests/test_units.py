@@ -12,6 +12,7 @@ import math
 import subprocess
 import sys
 from fractions import Fraction
+from pathlib import Path
 
 import pint
 import pytest
@@ -99,9 +100,7 @@ def test_seeded_units_never_import_pint():
     subprocess.run([sys.executable, "-c", code], check=True, cwd=str(_repo()))
 
 
-def _repo():
-    from pathlib import Path
-
+def _repo() -> Path:
     return Path(__file__).resolve().parents[1]
 
 

@@ -8,9 +8,15 @@ builds and drafts never do). Per build:
 
 Per gearbox family and shop-wide: the median and the scaled MAD (1.4826 * median absolute
 deviation, see `builder.history.robust`). A thin family is shrunk toward the shop-wide median:
-value = w * family median + (1 - w) * shop-wide median, with w = n / (n + 3 * (1 - n / 10))
-for n < 10 builds (a prior worth three builds that fades out linearly) and w = 1 from ten
-builds on, so a well-recorded family is predicted from its own history alone.
+value = w * family median + (1 - w) * shop-wide median, with w = n / (n + k * (1 - n / 10))
+for n < 10 builds and w = 1 from ten builds on, so a well-recorded family is predicted from
+its own history alone. k is what the shop-wide value is worth in builds of a family: the
+normal hierarchical model's sigma^2 / tau^2 (Gelman et al., Bayesian Data Analysis, 3rd ed.,
+section 5.4: the posterior mean of a group weighs its own mean by n / (n + sigma^2 / tau^2)),
+with sigma the scaled MAD of builds about their family medians and tau the scaled MAD of the
+family medians, clipped to 0.25..3 builds; 3 when fewer than three families have two or
+more builds. A consistent family that differs from the rest keeps its own value; a scattered
+one leans on the shop.
 
 Leave-one-out: every counted build is predicted from all the others (the same rules, itself
 removed from its family and from the shop-wide set); its relative residual
@@ -34,7 +40,8 @@ from builder.model import Build
 SHOP_WIDE = "shop-wide"
 COUNTED_STATUSES = ("measured", "verified")
 MIN_BUILDS = 3  # fewer builds than this in total: no calibrated prediction
-PRIOR_BUILDS = 3.0  # n0: the shop-wide value counts as this many builds of a thin family
+PRIOR_BUILDS = 3.0  # k at most: the shop-wide value counts as this many builds of a family
+MIN_PRIOR_BUILDS = 0.25  # k at least, however consistent the families look
 FULL_WEIGHT_BUILDS = 10  # from this many builds a family stands on its own (w = 1)
 FAMILY_INTERVAL_BUILDS = 5  # a family's own residuals set the interval from this many on
 INTERVAL_QUANTILES = (0.10, 0.90)  # an 80 % interval from the empirical residual quantiles
@@ -47,13 +54,29 @@ def calibration_description() -> str:
     return inspect.cleandoc(__doc__)
 
 
-def shrink_weight(n: int) -> float:
-    """Weight w of a family's own median: n / (n + n0 * (1 - n / 10)) below 10 builds, else 1."""
+def shrink_weight(n: int, prior_builds: float = PRIOR_BUILDS) -> float:
+    """Weight w of a family's own median: n / (n + k * (1 - n / 10)) below 10 builds, else 1."""
     if n >= FULL_WEIGHT_BUILDS:
         return 1.0
     if n <= 0:
         return 0.0
-    return n / (n + PRIOR_BUILDS * (1.0 - n / FULL_WEIGHT_BUILDS))
+    return n / (n + prior_builds * (1.0 - n / FULL_WEIGHT_BUILDS))
+
+
+def prior_builds(values: np.ndarray, members: dict[str, np.ndarray]) -> float:
+    """k = sigma^2 / tau^2 (within-family over between-family spread), clipped to 0.25..3.
+
+    Gelman et al., Bayesian Data Analysis, 3rd ed., section 5.4 (hierarchical normal model);
+    robust spreads (scaled MAD) stand in for the variances.
+    """
+    groups = [values[i] for i in members.values() if len(i) >= 2]
+    if len(groups) < 3:
+        return PRIOR_BUILDS
+    within = scaled_mad(np.concatenate([g - np.median(g) for g in groups]))
+    between = scaled_mad(np.array([np.median(g) for g in groups]))
+    if between <= 0.0:
+        return PRIOR_BUILDS
+    return float(np.clip((within / between) ** 2, MIN_PRIOR_BUILDS, PRIOR_BUILDS))
 
 
 @dataclass(frozen=True, slots=True)
@@ -109,6 +132,7 @@ class _ShrunkMedians:
         self.shop_mad = scaled_mad(self.values) if n else None
         self.family_median = {f: float(np.median(self.values[i])) for f, i in self.members.items()}
         self.family_mad = {f: scaled_mad(self.values[i]) for f, i in self.members.items()}
+        self.prior_builds = prior_builds(self.values, self.members)
         # medians without build i: shop-wide, and of its own family (NaN when it is alone)
         self.shop_loo = medians_leaving_one_out(self.values) if n >= 2 else np.full(n, np.nan)
         self.family_loo = np.full(n, np.nan)
@@ -142,7 +166,7 @@ class _ShrunkMedians:
             if self.families[i] == family:
                 n_family -= 1
                 family_median = float(self.family_loo[i])
-        weight = shrink_weight(n_family)
+        weight = shrink_weight(n_family, self.prior_builds)
         if n_shop < MIN_BUILDS:
             return _Estimate(None, weight, n_family, n_shop)
         value = shop_median if weight == 0 else weight * family_median + (1 - weight) * shop_median

@@ -80,7 +80,7 @@ def _explain(name: str, error, where: tuple) -> list[tuple[tuple, bool, str, str
     kind, instance, sub = error.validator, error.instance, error.schema
     if kind == "required":
         missing = [key for key in error.validator_value if isinstance(instance, dict) and key not in instance]
-        return [(where, False, dotted(where + (key,)), f"missing key {key!r}") for key in missing]
+        return [(where + (key,), False, dotted(where + (key,)), f"missing key {key!r}") for key in missing]
     if kind == "additionalProperties":
         allowed = list(sub.get("properties", {}))
         return [

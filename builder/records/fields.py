@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as _dt
+import math
 
 from builder import model
 from builder.problems import Problem
@@ -122,6 +123,8 @@ _REQUIRED = {
 }
 _ALTERNATIVES = {"bore": "piston_area", "piston_area": "bore"}  # a slave gives one of the two
 _LAYOUT_POINTS = ("pivot", "pad", "clevis", "pushrod_seat")
+_DISTINCT_POINTS = (("pivot", "pad"), ("pivot", "clevis"), ("clevis", "pushrod_seat"))
+_LEAST_DISTANCE = 1e-3  # m
 
 
 def quantity(value: object, key: str, report: Reporter, where: tuple) -> float | None:
@@ -196,12 +199,14 @@ def make_section(name: str, fields: dict, report: Reporter, where: tuple, part: 
     hint = " (here or in the catalogue part)" if part else ""
     missing = [key for key in _REQUIRED[name] if key not in fields]
     if name == "slave" and "bore" not in fields and "piston_area" not in fields:
-        missing.append("bore or piston_area")
+        missing.append("bore")
+        hint += " (or piston_area)"
     if name == "slave" and "bore" in fields and "piston_area" in fields:
         report(where, "give either bore or piston_area, not both")
         return None
     if name == "pedal" and "layout" not in fields:
         missing += [key for key in ("pivot_to_pad", "pivot_to_clevis") if key not in fields]
+        hint += " (or give a layout)"
     for key in missing:
         report(where, f"missing key {key!r}{hint}", field=dotted(where + (key,)))
     if missing or any(value is None for key, value in fields.items() if SECTION_FIELDS[name][key] != TEXT):
@@ -242,4 +247,8 @@ def _layout(raw: dict, report: Reporter, where: tuple) -> model.PedalLayout | No
                         where + ("rotation_to_stop",))
     if rotation is None or any(None in point for point in values.values()):
         return None
+    for one, other in _DISTINCT_POINTS:
+        if math.dist(values[one], values[other]) < _LEAST_DISTANCE:
+            report(where + (other,), f"{other} is within 1 mm of {one}; a lever needs distinct points")
+            return None
     return model.PedalLayout(rotation_to_stop=rotation, **values)

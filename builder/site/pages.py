@@ -236,8 +236,8 @@ def home_page(data: SiteData) -> str:
     parts = sum(len(p) for p in data.analysis.shop.parts.values())
     latest = by_date(builds)[:LATEST]
     rows = [[build_link(b.id, ""), md(b.date.isoformat() if b.date else NONE), md(b.status),
-             md(b.gearbox.family), md(b.vehicle), data.show.q(measured_effort(b), "force"),
-             md(b.outcome)] for b in latest]
+             md(b.gearbox.family), data.show.q(measured_effort(b), "force"), md(b.outcome)]
+            for b in latest]
     return "\n\n".join([
         heading(data.rules.site_title),
         "Hydraulic clutch conversions recorded by this shop: what was fitted, what the "
@@ -254,7 +254,7 @@ def home_page(data: SiteData) -> str:
         "shop has learned from the differences.",
         "![Computed against measured pedal effort](charts/effort-computed-vs-measured.svg)",
         "## Latest builds",
-        table(["Build", "Date", "Status", "Family", "Vehicle", "Measured effort", "Outcome"], rows),
+        table(["Build", "Date", "Status", "Family", "Measured effort", "Outcome"], rows),
         "All builds are listed on the [builds](builds/index.md) page; verified combinations by "
         "gearbox family are in the [fitment reference](reference.md).",
     ]) + "\n"
@@ -276,7 +276,7 @@ def effort_scatter(data: SiteData) -> str:
     return chart.render()
 
 
-def combination_key(build: Build, show: Display) -> tuple[str, str, str]:
+def combination_key(build: Build, show: Display, pedal_ratio: float | None) -> tuple[str, str, str]:
     """Master / slave / pedal as the reference shows them: part id, or the inline size."""
     master = build.master.part or f"{units.show(build.master.bore, 'length', show.primary)} bore"
     if build.slave.part:
@@ -285,7 +285,7 @@ def combination_key(build: Build, show: Display) -> tuple[str, str, str]:
         slave = f"{units.show(build.slave.bore, 'length', show.primary)} bore"
     else:
         slave = f"{units.show(build.slave.area, 'area', show.primary)} piston"
-    pedal = build.pedal.part or "inline pedal"
+    pedal = build.pedal.part or (f"inline, {pedal_ratio:.1f} : 1" if pedal_ratio else "inline")
     return master, slave, pedal
 
 
@@ -299,7 +299,9 @@ def reference_page(data: SiteData) -> str:
         lambda: defaultdict(list))
     for b in data.builds:
         if b.status in ("verified", "rejected"):
-            groups[(b.gearbox.family, b.gearbox.fork_tip_moves)][combination_key(b, data.show)].append(b)
+            sizing = data.sizing(b.id)
+            key = combination_key(b, data.show, sizing.ratio_pedal if sizing else None)
+            groups[(b.gearbox.family, b.gearbox.fork_tip_moves)][key].append(b)
     out = [heading("Fitment reference"),
            "Master, slave and pedal combinations this shop has finished, by gearbox family and "
            "the way the fork tip moves. Only verified builds (checked on the car) and rejected "
@@ -328,13 +330,13 @@ def reference_page(data: SiteData) -> str:
                 result = f"**\u2718 failed** ({failed})"
             else:
                 result = f"\u2714 verified ({ok})"
-            rows.append([_combo_cell("masters", first, key[0]), _combo_cell("slaves", first, key[1]),
-                         _combo_cell("pedals", first, key[2]),
-                         ", ".join(build_link(m.id, "") for m in members),
+            rows.append([result, _combo_cell("masters", first, key[0]),
+                         _combo_cell("slaves", first, key[1]), _combo_cell("pedals", first, key[2]),
                          data.show.q(statistics.median(efforts) if efforts else None, "force"),
-                         pct(min(margins) if margins else None, signed=True), result])
-        out.append(table(["Master", "Slave", "Pedal", "Builds", "Measured effort (median)",
-                          "Travel margin (least)", "Result"], rows))
+                         pct(min(margins) if margins else None, signed=True),
+                         ", ".join(build_link(m.id, "") for m in members)])
+        out.append(table(["Result", "Master", "Slave", "Pedal", "Measured effort (median)",
+                          "Travel margin (least)", "Builds"], rows))
     return "\n\n".join(out) + "\n"
 
 

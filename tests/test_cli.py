@@ -1,0 +1,212 @@
+"""End-to-end tests of the `fitment` commands on real files (the demo shop and copies of it)."""
+from __future__ import annotations
+
+import csv
+import hashlib
+import io
+import json
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from builder.cli import main
+
+ROOT = Path(__file__).resolve().parents[1]
+RECORDS = ROOT / "records"
+ALL_BUILDS = sorted(RECORDS.glob("builds/**/*.yaml"))
+
+CONTRACT = {
+    "ratios": {"pedal", "hydraulic", "fork", "overall"},
+    "effort": {"ideal_N", "predicted_N", "interval_N", "measured_N", "delta_pct"},
+    "travel": {"master_stroke_used_mm", "slave_mm", "bearing_mm", "needed_bearing_mm",
+               "margin_pct", "release_point_pct", "measured_slave_mm", "delta_pct"},
+    "volume": {"master_swept_ml", "needed_ml", "losses_ml"},
+    "pedal": {"floor_gap_mm"},
+}
+TOP_KEYS = {"id", "status", "ratios", "effort", "travel", "pressure_kPa", "volume", "pedal",
+            "flags", "similar"}
+
+
+def run(*args: str, records: Path = RECORDS):
+    return CliRunner().invoke(main, ["--records", str(records), *args], catch_exceptions=False)
+
+
+def tree_digest(folder: Path) -> str:
+    digest = hashlib.sha256()
+    for path in sorted(folder.rglob("*")):
+        digest.update(str(path.relative_to(folder)).encode())
+        if path.is_file():
+            digest.update(path.read_bytes())
+    return digest.hexdigest()
+
+
+@pytest.fixture
+def shop_copy(tmp_path: Path) -> Path:
+    """A private copy of the demo shop (records/ plus schema/ beside it, as in a clone)."""
+    shutil.copytree(RECORDS, tmp_path / "records")
+    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    return tmp_path / "records"
+
+
+def test_validate_demo_is_clean():
+    result = run("validate")
+    assert result.exit_code == 0, result.output
+    assert "valid" in result.output
+
+
+@pytest.mark.parametrize("path", ALL_BUILDS, ids=lambda p: p.stem)
+def test_check_json_has_every_contract_key(path: Path):
+    result = run("check", str(path), "--json")
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.output)
+    assert set(data) >= TOP_KEYS
+    for section, keys in CONTRACT.items():
+        assert set(data[section]) >= keys, section
+    assert data["id"] == path.stem
+    for flag in data["flags"]:
+        assert set(flag) == {"code", "severity", "message"}
+        assert flag["severity"] in ("warn", "fail")
+    for item in data["similar"]:
+        assert set(item) >= {"id", "distance", "differs", "measured_effort_N", "outcome"}
+        assert item["id"] != data["id"]  # a build is never its own neighbour
+
+
+def test_check_proposal_outside_records_with_similar_k(tmp_path: Path):
+    proposal = tmp_path / "proposal.yaml"
+    source = (RECORDS / "builds").rglob("*.yaml")
+    draft = next(p for p in sorted(source) if "status: draft" in p.read_text())
+    proposal.write_text(draft.read_text().replace(f"id: {draft.stem}", "id: PR-0001"))
+    result = run("check", str(proposal), "--json", "--similar", "3")
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.output)
+    assert data["id"] == "PR-0001"
+    assert data["effort"]["measured_N"] is None and data["travel"]["measured_slave_mm"] is None
+    assert len(data["similar"]) == 3
+    distances = [item["distance"] for item in data["similar"]]
+    assert distances == sorted(distances)
+    assert data["effort"]["predicted_N"] is not None
+
+
+def test_check_text_reads_in_both_unit_systems():
+    path = ALL_BUILDS[0]
+    result = run("check", str(path))
+    assert result.exit_code == 0, result.output
+    assert " lbf (" in result.output and " N)" in result.output
+    assert " in (" in result.output and " mm)" in result.output
+    assert "Most similar past builds" in result.output
+
+
+def test_failing_check_prints_the_caution(tmp_path: Path):
+    path = ALL_BUILDS[0]
+    text = path.read_text()
+    proposal = tmp_path / "short.yaml"
+    # a master stroke far too short to release the clutch
+    lines = []
+    in_master = False
+    for line in text.splitlines():
+        if line.startswith("master:"):
+            in_master = True
+            lines.append("master:\n  bore: 5/8 in\n  stroke: 0.3 in")
+            continue
+        if in_master and line.startswith("  "):
+            continue
+        in_master = False
+        lines.append(line)
+    proposal.write_text("\n".join(lines).replace(f"id: {path.stem}", "id: PR-0002") + "\n")
+    result = run("check", str(proposal))
+    assert result.exit_code == 0, result.output
+    assert "FAIL" in result.output
+    assert "makers' specifications" in result.output
+
+
+def test_check_missing_file_is_located_error():
+    result = run("check", "no/such/file.yaml")
+    assert result.exit_code == 1
+    assert "no/such/file.yaml:0:0: file: no such file" in result.output
+
+
+def test_report_csv_parses_back_one_row_per_build():
+    result = run("report", "--format", "csv")
+    assert result.exit_code == 0, result.output
+    rows = list(csv.DictReader(io.StringIO(result.output)))
+    assert {row["id"] for row in rows} == {p.stem for p in ALL_BUILDS}
+    row = rows[0]
+    for column in ("date", "status", "family", "fork_tip_moves", "master_bore_mm",
+                   "pedal_ratio", "overall_ratio", "computed_effort_N", "measured_effort_N",
+                   "effort_delta_pct", "travel_margin_pct", "flags"):
+        assert column in row
+    measured = [r for r in rows if r["measured_effort_N"]]
+    assert measured and all(float(r["computed_effort_N"]) > 0 for r in measured)
+
+
+def test_report_json_and_table():
+    data = json.loads(run("report", "--format", "json").output)
+    assert len(data) == len(ALL_BUILDS)
+    table = run("report").output.splitlines()
+    assert table[0].startswith("id") and len(table) == len(ALL_BUILDS) + 2
+
+
+def test_calibration_lists_every_family_and_shop_wide():
+    result = run("calibration")
+    assert result.exit_code == 0, result.output
+    assert "shop-wide" in result.output
+    for family in ("QX-5", "VK-4", "YC-6"):
+        assert family in result.output
+    assert "loo_median_err_pct" in result.output
+
+
+def test_new_like_copies_inputs_then_refuses_a_second_time(shop_copy: Path):
+    like = ALL_BUILDS[0]
+    result = run("new", "HW-0999", "--like", like.stem, records=shop_copy)
+    assert result.exit_code == 0, result.output
+    written = next(shop_copy.glob("builds/*/HW-0999.yaml"))
+    text = written.read_text()
+    assert "id: HW-0999" in text and "status: draft" in text
+    assert "measured:" not in text
+    assert text.startswith("# yaml-language-server: $schema=")
+    before = written.read_bytes()
+    again = run("new", "HW-0999", "--like", like.stem, records=shop_copy)
+    assert again.exit_code == 1
+    assert "already exists" in again.output
+    assert written.read_bytes() == before
+    assert run("validate", records=shop_copy).exit_code == 0
+
+
+def test_new_template_validates_and_rejects_bad_ids(shop_copy: Path):
+    assert run("new", "HW-0998", records=shop_copy).exit_code == 0
+    assert run("validate", records=shop_copy).exit_code == 0
+    bad = run("new", "../evil", records=shop_copy)
+    assert bad.exit_code == 1 and "expected an id like" in bad.output
+    existing = run("new", ALL_BUILDS[0].stem, records=shop_copy)
+    assert existing.exit_code == 1 and "already exists" in existing.output
+
+
+def test_reading_commands_leave_records_byte_identical(shop_copy: Path, tmp_path: Path):
+    before = tree_digest(shop_copy)
+    for args in (["validate"], ["check", str(ALL_BUILDS[0])], ["report", "--format", "csv"],
+                 ["calibration"], ["site", "build", "--out", str(tmp_path / "out")]):
+        result = run(*args, records=shop_copy)
+        assert result.exit_code == 0, (args, result.output)
+    assert tree_digest(shop_copy) == before
+
+
+def test_usage_error_exits_2():
+    assert run("report", "--format", "pdf").exit_code == 2
+    assert run("no-such-command").exit_code == 2
+
+
+def test_console_script_runs_as_a_process():
+    done = subprocess.run([sys.executable, "-m", "builder.cli", "--records", str(RECORDS),
+                           "validate"], capture_output=True, text=True, timeout=120)
+    assert done.returncode == 0, done.stderr
+
+
+def test_readme_test_command_is_what_ci_runs():
+    readme = (ROOT / "README.md").read_text()
+    ci = (ROOT / ".ci" / "run").read_text()
+    command = next(line for line in ci.splitlines() if line.startswith("python3 -m venv"))
+    assert command in readme
