@@ -145,8 +145,8 @@ def describe(result: CheckResult, safe: Callable[[str | None], str], primary: st
         if p.interval is not None:
             spread = (f", likely {show(p.interval[0], 'force', primary)} to "
                       f"{show(p.interval[1], 'force', primary)}")
-        row("", f"predicted {show(effort, 'force', primary)} from {p.basis} "
-            f"({p.n_builds} builds){spread}")
+        row("", f"predicted {show(effort, 'force', primary)}{spread}")
+        row("", f"from {p.basis}")
     else:
         note = p.note if p is not None and p.note else "not enough history"
         row("", f"predicted {show(effort, 'force', primary)} at the shop default efficiency "

@@ -296,6 +296,8 @@ def test_all_problems_reported_at_once(records):
     text = text.replace("  pushrod: spherical end", "  pushrod: spherical end\n  colour: red")
     fields = {p.field for p in _problems(records, text)}
     assert {"slave.bore", "line.hose", "pedal.colour"} <= fields
+    no_line = BUILD.replace("bore: 7/8 in", "bore: 75 in").replace("line:\n  length: 38 in\n", "line_:\n  length: 38 in\n")
+    assert {"line", "line_", "slave.bore"} <= {p.field for p in _problems(records, no_line)}
 
 
 def test_status_and_slave_kind_rules(records):

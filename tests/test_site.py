@@ -78,9 +78,10 @@ def site(tmp_path_factory) -> tuple[object, Path]:
     root = tmp_path_factory.mktemp("shop")
     result = analysis(6, hostile=True, root=str(root / "records"))
     out = root / "site"
-    stages = []
-    build_site(result, out, progress=lambda stage, done, total: stages.append(stage))
-    assert {"pages", "mkdocs", "publish"} <= set(stages)
+    steps = []
+    build_site(result, out, progress=lambda done, total: steps.append((done, total)))
+    total = len(result.shop.builds) + 2  # a step per build page, then mkdocs, then publishing
+    assert steps == [(done, total) for done in range(1, total + 1)]
     return result, out
 
 
@@ -233,6 +234,7 @@ def test_reference_marks_failed_combinations(site):
     _, out = site
     text = page_text(out / "reference" / "index.html")
     assert "\u2718 failed (1)" in text and "\u2714 verified (2)" in text
+    assert text.index("\u2718 failed (1)") < text.index("MC-750")  # the mark comes first
 
 
 def test_failed_build_leaves_the_last_good_site_byte_for_byte(tmp_path):

@@ -196,19 +196,17 @@ def section_fields(section: object) -> dict:
 
 def make_section(name: str, fields: dict, report: Reporter, where: tuple, part: str | None = None):
     """The model section from converted fields, or None after reporting what is missing."""
-    hint = " (here or in the catalogue part)" if part else ""
-    missing = [key for key in _REQUIRED[name] if key not in fields]
+    missing = {key: "" for key in _REQUIRED[name] if key not in fields}
     if name == "slave" and "bore" not in fields and "piston_area" not in fields:
-        missing.append("bore")
-        hint += " (or piston_area)"
+        missing["bore"] = " (or piston_area)"
     if name == "slave" and "bore" in fields and "piston_area" in fields:
         report(where, "give either bore or piston_area, not both")
         return None
     if name == "pedal" and "layout" not in fields:
-        missing += [key for key in ("pivot_to_pad", "pivot_to_clevis") if key not in fields]
-        hint += " (or give a layout)"
-    for key in missing:
-        report(where, f"missing key {key!r}{hint}", field=dotted(where + (key,)))
+        missing |= {key: " (or give a layout)" for key in ("pivot_to_pad", "pivot_to_clevis") if key not in fields}
+    place = " here or in the catalogue part" if part else ""
+    for key, alternative in missing.items():
+        report(where, f"missing key {key!r}{alternative}{place}", field=dotted(where + (key,)))
     if missing or any(value is None for key, value in fields.items() if SECTION_FIELDS[name][key] != TEXT):
         return None
     values = {key: fields.get(key) for key in _CLASS_FIELDS[name]}

@@ -11,10 +11,11 @@ import os
 import shutil
 import tempfile
 import uuid
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import Any
 
+from builder.problems import InputError, Problem
 from builder.site.escape import plain
 from builder.site.pages import generated_pages, method_appendix
 
@@ -23,15 +24,18 @@ MARKER = ".fitment-site"  # written into every site we build; only such a folder
 CONFIG = "mkdocs.yml"
 THEME_DIR = "overrides"
 
-Progress = Callable[[str, int, int], None]  # (stage, done, total)
+Progress = Callable[[int, int], None]  # (done, total): one step per build, then mkdocs, publish
 
 
-class SiteBuildError(Exception):
-    """The site could not be built; the published folder was left untouched."""
+class SiteBuildError(InputError):
+    """The site could not be built; the published folder was left untouched.
 
-    def __init__(self, message: str, details: list[str] | None = None):
-        self.details = list(details or [])
-        super().__init__("\n".join([message, *self.details]))
+    An InputError, so the command line prints `path:0:0: site: message` lines and exits 1.
+    """
+
+    def __init__(self, path: str | os.PathLike, message: str, details: Sequence[str] = ()):
+        super().__init__([Problem(str(path), 0, 0, "site", message)]
+                         + [Problem(str(path), 0, 0, "mkdocs", d) for d in details])
 
 
 def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.PathLike | None = None,
@@ -40,24 +44,26 @@ def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.Pat
 
     site_src: a folder whose files override the packaged defaults file by file; None uses
     the `site_src/` beside the shop's records folder when there is one. progress, when
-    given, is called as progress(stage, done, total) for the stages "pages", "mkdocs" and
-    "publish". Raises SiteBuildError (out_dir untouched) when the build fails.
+    given, is called as progress(done, total): one step per build page, then one for the
+    mkdocs build and one for publishing. Raises SiteBuildError (out_dir untouched).
     """
     out = Path(out_dir).resolve()
     check_replaceable(out)
     layers = source_layers(analysis, site_src)
+    steps = len(analysis.shop.builds) + 2
     out.parent.mkdir(parents=True, exist_ok=True)
     with tempfile.TemporaryDirectory(prefix="fitment-docs-") as work_name:
         work = Path(work_name)
         docs = write_sources(layers, work)
-        write_generated(analysis, docs, progress)
+        per_page = None if progress is None else (lambda done, _total: progress(done, steps))
+        write_generated(analysis, docs, per_page)
         new = Path(tempfile.mkdtemp(prefix=f".{out.name}.new-", dir=out.parent))
         try:
-            run_mkdocs(work / CONFIG, docs, new, analysis.shop.rules.site_title, progress)
+            run_mkdocs(work / CONFIG, docs, new, analysis.shop.rules.site_title, layers[-1])
+            _tick(progress, steps - 1, steps)
             (new / MARKER).write_text("Built by fitment; `fitment site build` replaces this folder.\n")
-            _tick(progress, "publish", 0, 1)
             swap_into_place(new, out)
-            _tick(progress, "publish", 1, 1)
+            _tick(progress, steps, steps)
         finally:
             shutil.rmtree(new, ignore_errors=True)
 
@@ -67,10 +73,10 @@ def check_replaceable(out: Path) -> None:
     if not out.exists():
         return
     if not out.is_dir():
-        raise SiteBuildError(f"{out}: exists and is not a folder; not replacing it")
+        raise SiteBuildError(out, "exists and is not a folder; not replacing it")
     if any(out.iterdir()) and not (out / MARKER).exists():
-        raise SiteBuildError(f"{out}: folder is not empty and was not built by fitment; "
-                             "not replacing it (choose another --out)")
+        raise SiteBuildError(out, "folder is not empty and was not built by fitment; "
+                                  "not replacing it (choose another --out)")
 
 
 def source_layers(analysis: Any, site_src: str | os.PathLike | None) -> list[Path]:
@@ -79,7 +85,7 @@ def source_layers(analysis: Any, site_src: str | os.PathLike | None) -> list[Pat
     if site_src is not None:
         extra = Path(site_src)
         if not extra.is_dir():
-            raise SiteBuildError(f"{extra}: site sources folder not found")
+            raise SiteBuildError(extra, "site sources folder not found")
         layers.append(extra)
     else:
         beside = Path(analysis.shop.root).resolve().parent / "site_src"
@@ -106,7 +112,7 @@ def write_sources(layers: list[Path], work: Path) -> Path:
             target.parent.mkdir(parents=True, exist_ok=True)
             shutil.copyfile(path, target)
     if not (work / CONFIG).exists():
-        raise SiteBuildError(f"no {CONFIG} in the site sources ({', '.join(map(str, layers))})")
+        raise SiteBuildError(layers[-1], f"no {CONFIG} in the site sources")
     return docs
 
 
@@ -114,7 +120,7 @@ def write_generated(analysis: Any, docs: Path, progress: Progress | None) -> Non
     """Generated pages and pictures go over the sources; the method page gets the
     similarity section from the history module."""
     made: set[Path] = set()
-    for relative, text in generated_pages(analysis, lambda i, n: _tick(progress, "pages", i, n)):
+    for relative, text in generated_pages(analysis, progress):
         target = docs / relative
         if target.parent not in made:
             target.parent.mkdir(parents=True, exist_ok=True)
@@ -138,13 +144,13 @@ class _Collect(logging.Handler):
 
 
 def run_mkdocs(config_file: Path, docs: Path, site_dir: Path, site_name: str | None,
-               progress: Progress | None) -> None:
-    """mkdocs build in strict mode; any warning or error becomes a SiteBuildError."""
+               sources: Path) -> None:
+    """mkdocs build in strict mode; any warning or error becomes a SiteBuildError naming
+    the site sources folder."""
     from mkdocs.commands.build import build
     from mkdocs.config import load_config
     from mkdocs.exceptions import Abort, MkDocsException
 
-    _tick(progress, "mkdocs", 0, 1)
     logger = logging.getLogger("mkdocs")
     collect, propagate = _Collect(), logger.propagate
     logger.addHandler(collect)
@@ -159,11 +165,10 @@ def run_mkdocs(config_file: Path, docs: Path, site_dir: Path, site_name: str | N
         finally:
             config.plugins.on_shutdown()
     except (Abort, MkDocsException) as error:
-        raise SiteBuildError(f"site build failed: {error}", collect.messages) from None
+        raise SiteBuildError(sources, f"the site build failed: {error}", collect.messages) from None
     finally:
         logger.removeHandler(collect)
         logger.propagate = propagate
-    _tick(progress, "mkdocs", 1, 1)
 
 
 def swap_into_place(new: Path, out: Path) -> None:
@@ -185,6 +190,6 @@ def swap_into_place(new: Path, out: Path) -> None:
         shutil.rmtree(old, ignore_errors=True)
 
 
-def _tick(progress: Progress | None, stage: str, done: int, total: int) -> None:
+def _tick(progress: Progress | None, done: int, total: int) -> None:
     if progress is not None:
-        progress(stage, done, total)
+        progress(done, total)

@@ -401,25 +401,29 @@ def part_page(data: SiteData, part: Part) -> str:
 def calibration_page(data: SiteData) -> str:
     cal = data.analysis.calibration
     groups = [cal.shop] + [cal.families[name] for name in sorted(cal.families)]
-    rows = []
-    for g in groups:
-        rows.append([md(g.name), str(g.n), pct(g.efficiency), _spread(_get(g, "efficiency_median"),
-                     g.efficiency_mad), f"{g.weight:.2f}",
-                     NONE if g.travel_factor is None else f"{g.travel_factor:.3f}",
-                     _spread(_get(g, "travel_factor_median"), g.travel_factor_mad, percent=False),
-                     str(g.n_travel), pct(g.loo_median_abs_err), pct(g.loo_p90_abs_err)])
+    effort_rows = [[md(g.name), str(g.n), pct(g.efficiency),
+                    _spread(_get(g, "efficiency_median"), g.efficiency_mad), f"{g.weight:.2f}",
+                    pct(g.loo_median_abs_err), pct(g.loo_p90_abs_err)] for g in groups]
+    travel_rows = [[md(g.name), str(g.n_travel),
+                    NONE if g.travel_factor is None else f"{g.travel_factor:.3f}",
+                    _spread(_get(g, "travel_factor_median"), g.travel_factor_mad, percent=False)]
+                   for g in groups]
     return "\n\n".join([
         heading("Calibration"),
-        "What the shop's own measurements say about its losses. Apparent efficiency is the "
-        "ideal pedal effort (release load over overall ratio) divided by the measured effort; "
-        "the travel factor is measured slave travel over computed slave travel. A family with "
-        "few builds leans on the shop-wide value (its weight shows how much it stands on its "
-        "own). The leave-one-out errors show how far a prediction has typically been off: "
-        "each build predicted from all the others.",
+        "What the shop's own measurements say about its losses. A family with few builds leans "
+        "on the shop-wide value; its weight shows how much it stands on its own (1 = entirely).",
+        "## Pedal effort",
+        "Apparent efficiency is the ideal pedal effort (release load over overall ratio) "
+        "divided by the measured effort. The errors show how far a calibrated prediction has "
+        "been off, each build predicted from all the others (leave-one-out).",
         table(["Group", "Builds", "Efficiency used", "Own median \u00b1 MAD", "Weight",
-               "Travel factor used", "Own median \u00b1 MAD", "Builds with travel",
-               "Typical error", "90 % of errors below"], rows),
+               "Typical error", "90 % of errors below"], effort_rows),
         "![Apparent efficiency by gearbox family](charts/calibration-efficiency.svg)",
+        "## Slave travel",
+        "The travel factor is the measured slave travel over the computed slave travel; below 1 "
+        "the line and fluid take up more than the calculation allows.",
+        table(["Group", "Builds with travel", "Travel factor used", "Own median \u00b1 MAD"],
+              travel_rows),
         "![Travel factor by gearbox family](charts/calibration-travel.svg)",
         "How these numbers are worked out is on the [method](method.md) page.",
     ]) + "\n"

@@ -13,7 +13,7 @@ from pathlib import Path
 from typing import Any
 
 from builder.problems import InputError
-from builder.site.build import PACKAGED_SITE_SRC, SiteBuildError, build_site
+from builder.site.build import PACKAGED_SITE_SRC, build_site
 
 
 class _QuietHandler(SimpleHTTPRequestHandler):
@@ -55,11 +55,23 @@ def source_stamp(folders: list[Path]) -> tuple:
     return tuple(stamp)
 
 
-def serve(analysis_loader: Callable[[], Any], host: str = "127.0.0.1", port: int = 8000,
-          site_src: str | os.PathLike | None = None, poll_seconds: float = 1.0) -> None:
+def records_loader(records: str | os.PathLike) -> Callable[[], Any]:
+    """Load and analyse a records folder afresh on every call."""
+    from builder.history import analyse
+    from builder.records import load_shop
+
+    return lambda: analyse(load_shop(records))
+
+
+def serve(analysis_loader: Callable[[], Any] | str | os.PathLike, host: str = "127.0.0.1",
+          port: int = 8000, site_src: str | os.PathLike | None = None,
+          poll_seconds: float = 1.0) -> None:
     """Build the site, serve it at http://host:port/ until interrupted, and rebuild it when
-    the records or site sources change. A rebuild that fails (bad record, strict mkdocs
-    warning) is reported and the last good site keeps being served."""
+    the records or site sources change. analysis_loader: a function returning a fresh
+    Analysis, or a records folder. A rebuild that fails (bad record, strict mkdocs warning)
+    is reported and the last good site keeps being served."""
+    if not callable(analysis_loader):
+        analysis_loader = records_loader(analysis_loader)
     analysis = analysis_loader()
     work = Path(tempfile.mkdtemp(prefix="fitment-serve-"))
     out = work / "site"
@@ -79,9 +91,7 @@ def serve(analysis_loader: Callable[[], Any], host: str = "127.0.0.1", port: int
                 try:
                     build_site(analysis_loader(), out, site_src)
                     print("Rebuilt the site.", file=sys.stderr)
-                except InputError as error:
-                    print(f"{error}\nKept the last good site.", file=sys.stderr)
-                except SiteBuildError as error:
+                except InputError as error:  # SiteBuildError included
                     print(f"{error}\nKept the last good site.", file=sys.stderr)
     except KeyboardInterrupt:
         pass
