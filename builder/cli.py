@@ -37,7 +37,7 @@ class Context:
 
 def fail(problems: list[Problem]) -> None:
     """Print every problem to stderr and exit 1."""
-    for problem in problems:
+    for problem in sorted(problems, key=lambda p: (p.path, p.line, p.col, p.field)):
         click.echo(terminal_safe(str(problem)), err=True)
     click.echo(f"{len(problems)} problem(s) found.", err=True)
     sys.exit(1)

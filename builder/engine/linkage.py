@@ -110,30 +110,40 @@ class SliderCrankPedal:
 
     def state(self, theta: float) -> tuple[float, float, float] | None:
         """(stroke s m, ds/dtheta m/rad, pushrod offset h m) at crank angle theta, or None
-        where the pushrod cannot reach the axis.
+        where the pushrod cannot reach the axis (see `states`)."""
+        return self.states((theta,))[0]
+
+    def states(self, thetas) -> list[tuple[float, float, float] | None]:
+        """state() at each crank angle theta (rad), in one loop.
 
         Seat on the axis at x with |x u - d| = l, d = clevis displacement:
         x = a + sqrt(l^2 - h^2), a = d.u, h = u x d; s = x - l;
         ds/dtheta = a' - h h' / sqrt(l^2 - h^2). Norton, Design of Machinery,
         slider-crank position and velocity analysis.
         """
-        turn = self.sense * theta
-        cos_t, sin_t = math.cos(turn), math.sin(turn)
+        sense, rod = self.sense, self.rod
         k0x, k0y = self.crank
-        kx = k0x * cos_t - k0y * sin_t
-        ky = k0x * sin_t + k0y * cos_t
         ux, uy = self.axis
-        dx, dy = kx - k0x, ky - k0y
-        along = dx * ux + dy * uy
-        offset = ux * dy - uy * dx
-        room = self.rod * self.rod - offset * offset
-        if room <= 0.0:
-            return None
-        root = math.sqrt(room)
-        vx, vy = -self.sense * ky, self.sense * kx
-        along_rate = vx * ux + vy * uy
-        offset_rate = ux * vy - uy * vx
-        return along + root - self.rod, along_rate - offset * offset_rate / root, offset
+        cos, sin, sqrt = math.cos, math.sin, math.sqrt
+        found = []
+        for theta in thetas:
+            turn = sense * theta
+            cos_t, sin_t = cos(turn), sin(turn)
+            kx = k0x * cos_t - k0y * sin_t
+            ky = k0x * sin_t + k0y * cos_t
+            dx, dy = kx - k0x, ky - k0y
+            along = dx * ux + dy * uy
+            offset = ux * dy - uy * dx
+            room = rod * rod - offset * offset
+            if room <= 0.0:
+                found.append(None)
+                continue
+            root = sqrt(room)
+            vx, vy = -sense * ky, sense * kx
+            along_rate = vx * ux + vy * uy
+            offset_rate = ux * vy - uy * vx
+            found.append((along + root - rod, along_rate - offset * offset_rate / root, offset))
+        return found
 
     def _pushes(self, theta: float) -> bool:
         """True while turning further still pushes the master in."""
@@ -142,14 +152,14 @@ class SliderCrankPedal:
     def _build_table(self) -> None:
         """Sample the swing; end it early where the linkage goes over centre (binds)."""
         thetas = _spaced(self.stop_angle)
-        states = [self.state(t) for t in thetas]
+        states = self.states(thetas)
         bad = next((i for i, st in enumerate(states) if not _pushing(st)), None)
         self.binds = bad is not None
         self.end_angle = self.stop_angle
         if self.binds:
             self.end_angle = _last_true(self._pushes, thetas[bad - 1], thetas[bad])
             thetas = _spaced(self.end_angle)
-            states = [self.state(t) for t in thetas]
+            states = self.states(thetas)
         self._thetas = thetas
         self._strokes = [st[0] for st in states]
         self._states = states

@@ -251,15 +251,18 @@ def _yaml_files(folder: Path) -> list[Path]:
     return found
 
 
-def _duplicate_ids(builds_dir: Path, checked: Iterable[Path]) -> list[Problem]:
-    """Build files in `checked` whose file name (= id) another file under builds_dir also has."""
+def _duplicate_ids(builds_dir: Path, checked: Iterable[Path], listing: list[Path] | None = None) -> list[Problem]:
+    """Build files in `checked` whose file name (= id) another file under builds_dir also has.
+
+    `listing` is _yaml_files(builds_dir) when the caller already has it.
+    """
     first: dict[str, Path] = {}
-    for path in _yaml_files(builds_dir):
+    for path in _yaml_files(builds_dir) if listing is None else listing:
         first.setdefault(path.stem, path)
     problems = []
     for path in checked:
         original = first.get(path.stem)
-        if original is not None and original.resolve() != path.resolve():
+        if original is not None and original != path and original.resolve() != path.resolve():
             line, col = _id_position(path)
             problems.append(Problem(str(path), line, col, "id", f"build id {path.stem} is already used by "
                                     f"{original}; ids must be unique across {builds_dir}"))
@@ -285,7 +288,7 @@ def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress |
             in_builds.append(path)
         if progress is not None:
             progress(done, len(paths))
-    return builds, problems + _duplicate_ids(root / "builds", in_builds)
+    return builds, problems + _duplicate_ids(root / "builds", in_builds, paths if all_in_builds else None)
 
 
 def load_shop(records_dir: str | os.PathLike, progress: Progress | None = None) -> model.Shop:

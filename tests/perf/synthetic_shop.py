@@ -31,8 +31,9 @@ START = dt.date(2015, 1, 5)
 DAYS = 11 * 365
 REJECTED_SHARE = 0.05
 DRAFT_SHARE = 0.05
-EXTRA_LAYOUT_SHARE = 0.5  # pedals given a side-view layout, on top of the demo's own share
-EXTRA_INLINE_CLUTCH_SHARE = 0.4  # bench-measured clutches with a load curve
+EXTRA_LAYOUT_SHARE = 0.15  # pedals given a side-view layout, on top of the demo's own share
+EXTRA_INLINE_CLUTCH_SHARE = 0.25  # bench-measured clutches with a load curve
+EXTRA_INLINE_CYLINDER_SHARE = 0.2  # master or slave written out by hand
 FAMILY_WEIGHTS = [(f.code, f.builds) for f in demo.FAMILIES]
 TROUBLES = [trouble for _, trouble in demo.REJECTED]
 LOG_STEPS = (
@@ -74,7 +75,11 @@ def _slot(rng: random.Random) -> tuple[dt.date, str, str, str]:
 
 
 def _richer(plan: demo.Plan, rng: random.Random) -> None:
-    """More layouts and bench-measured clutches than the demo shop has."""
+    """More layouts, bench-measured clutches and hand-written cylinders than the demo has."""
+    if rng.random() < EXTRA_INLINE_CYLINDER_SHARE:
+        plan.master_style = "inline"
+    if rng.random() < EXTRA_INLINE_CYLINDER_SHARE:
+        plan.slave_style = "inline"
     pedal = plan.sections["pedal"]
     if plan.trouble != "bottoms" and "layout" not in pedal.fields and rng.random() < EXTRA_LAYOUT_SHARE:
         pedal.fields["layout"] = demo._pedal_layout(rng, pedal.resolved(), plan.system, 0.0)
