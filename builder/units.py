@@ -63,9 +63,10 @@ _QUANTITY_RE = re.compile(
     r"(?P<whole>\d+)(?:\s+|-)(?P<num>\d+)/(?P<den>\d+)"  # 1-1/8, 1 1/8
     r"|(?P<fnum>\d+)/(?P<fden>\d+)"  # 7/8
     rf"|(?P<dec>{_NUMBER})"  # 0.875, 22, 1e-3
-    r")\s*(?P<unit>.*?)\s*"
+    r")\s*(?P<unit>(?:.*\S)?)\s*"  # greedy up to the last non-space: linear time
 )
 _MAX_UNIT_CHARS = 40
+_MAX_TEXT_CHARS = 60  # `0.31 mL/m/MPa` is 13; a cap keeps parsing and the memo small
 _UNIT_RE = re.compile(r"[%°]|[^\W\d_][^\s]*(?: [^\s]+)*")  # starts with a letter, %, or °
 _BARE_NUMBER_RE = re.compile(r"(?<![\^*\d.-])\d")  # digits only as exponents: in^2, m**3
 
@@ -86,6 +87,9 @@ def parse_quantity(text: object, dimension: str, *, signed: bool = False) -> flo
     Raises QuantityError naming the expected dimension and what was found.
     """
     if type(text) is str:
+        if len(text) > _MAX_TEXT_CHARS:
+            raise QuantityError(f"expected {_expected(dimension)}; found {len(text)} characters "
+                                f"starting {text[:20]!r}, too long for a quantity")
         key = (text, dimension)
         value = _parsed.get(key)
         if value is None:

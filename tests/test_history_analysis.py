@@ -8,7 +8,7 @@ from builder.engine import size_build
 from builder.history import analyse, analyse_proposal, calibrate
 from builder.model import Pedal, PedalLayout, Shop, ShopRules
 from builder.problems import InputError
-from test_history_factories import INCH, make_build
+from test_history_factories import INCH, make_build, make_sizing
 
 RULES = ShopRules(
     site_title="Invented test shop",
@@ -99,3 +99,30 @@ def test_impossible_pedal_layout_is_an_input_error():
         analyse(shop)
     [problem] = caught.value.problems
     assert (problem.path, problem.field) == ("records/builds/HW-500.yaml", "pedal.layout")
+
+
+def test_effort_band_is_judged_on_the_calibrated_effort():
+    # A 150 N default-efficiency figure is above a 60..140 N band; the shop's own history
+    # (apparent efficiency 1.0 here) predicts 100 N, inside it: the flag must follow history.
+    import dataclasses
+
+    from builder.engine.result import Flag
+    from builder.history.analysis import judged_on_calibrated_effort
+    from builder.history.calibration import Prediction
+    from test_engine_factories import make_rules
+
+    rules = make_rules(effort_band=(60.0, 140.0))
+    sizing = dataclasses.replace(
+        make_sizing("QX-001", effort_ideal=100.0, effort_predicted=150.0),
+        flags=(Flag("effort-high", "warn", "Predicted pedal effort is above the band."),
+               Flag("travel-short", "fail", "Bearing travel is short.")))
+    calibrated = Prediction(effort=100.0, interval=None, n_builds=12, basis="family", note=None)
+    judged = judged_on_calibrated_effort(sizing, calibrated, rules)
+    assert [f.code for f in judged.flags] == ["travel-short"]
+    assert judged.effort_predicted == 150.0  # computed values are left as the engine gave them
+    heavy = Prediction(effort=160.0, interval=None, n_builds=12, basis="family", note=None)
+    flagged = judged_on_calibrated_effort(sizing, heavy, rules)
+    assert [f.code for f in flagged.flags] == ["travel-short", "effort-high"]
+    assert flagged.flags[1].message.startswith("Calibrated pedal effort")
+    unknown = Prediction(effort=None, interval=None, n_builds=1, basis="", note="not enough")
+    assert judged_on_calibrated_effort(sizing, unknown, rules) is sizing

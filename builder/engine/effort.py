@@ -38,16 +38,18 @@ def predicted_effort(ideal: float, efficiency: float) -> float:
     return ideal / efficiency
 
 
-def load_at(curve: tuple[tuple[float, float], ...], clearance: float, bearing: float) -> float:
+def load_at(curve: tuple[tuple[float, float], ...], clearance: float, bearing: float,
+            travels: list[float] | None = None) -> float:
     """Bearing load (N) at bearing travel x_b (m, from rest, the curve's own axis).
 
     0 before the bearing has taken up its clearance; after it, linear interpolation of
     the record's (travel m, load N) points, held flat beyond either end. Piecewise-
-    linear interpolation, no physical law.
+    linear interpolation, no physical law. `travels`: the curve's travels, when the
+    caller already has them.
     """
     if bearing < clearance:
         return 0.0
-    xs = [x for x, _ in curve]
+    xs = [x for x, _ in curve] if travels is None else travels
     i = bisect.bisect_right(xs, bearing)
     if i == 0:
         return curve[0][1]
@@ -86,8 +88,9 @@ def effort_curve(
     if 0.0 < clearance < bearing_reached:
         travels.add(clearance)
     samples = []
+    curve_travels = [x for x, _ in curve]
     for x_b in sorted(travels):
-        load = load_at(curve, clearance, x_b)
+        load = load_at(curve, clearance, x_b, curve_travels)
         if x_b == clearance and load > 0.0:
             samples.append((x_b, 0.0))  # the step where the bearing meets the fingers
         samples.append((x_b, load))

@@ -84,18 +84,24 @@ def travel_flags(s: Sizing, rules: ShopRules) -> list[Flag]:
     return flags
 
 
+EFFORT_CODES = ("effort-high", "effort-low")
+
+
 def effort_flags(s: Sizing, rules: ShopRules) -> list[Flag]:
     """effort-high, effort-low against the shop's effort band."""
+    return effort_band_flags(s.effort_predicted, rules, "Predicted")
+
+
+def effort_band_flags(effort: float, rules: ShopRules, which: str) -> list[Flag]:
+    """effort-high, effort-low for one pad effort (N); `which` names the estimate."""
     low, high = rules.effort_band
     band = f"{force(low, rules)} to {force(high, rules)}"
-    if s.effort_predicted > high:
+    if effort > high:
         return [Flag("effort-high", "warn",
-            f"Predicted pedal effort {force(s.effort_predicted, rules)} is above the shop's"
-            f" band of {band}.")]
-    if s.effort_predicted < low:
+            f"{which} pedal effort {force(effort, rules)} is above the shop's band of {band}.")]
+    if effort < low:
         return [Flag("effort-low", "warn",
-            f"Predicted pedal effort {force(s.effort_predicted, rules)} is below the shop's"
-            f" band of {band}.")]
+            f"{which} pedal effort {force(effort, rules)} is below the shop's band of {band}.")]
     return []
 
 

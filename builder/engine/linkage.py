@@ -203,13 +203,9 @@ class SliderCrankPedal:
     def sweep(self) -> tuple[tuple[float, float, float, float], ...]:
         """(pad travel m, master stroke m, instantaneous ratio, pushrod angle rad) from
         rest to the stop (or to where the linkage binds)."""
-        return tuple(
-            (
-                arc_length(self.pad_radius, t),
-                s,
-                self.pad_radius / rate,
-                self.pushrod_angle(offset),
-            )
+        pad, rod, asin = self.pad_radius, self.rod, math.asin
+        return tuple(  # arc_length and pushrod_angle written out: this runs for every sample
+            (pad * t, s, pad / rate, asin(min(1.0, abs(offset) / rod)))
             for t, (s, rate, offset) in zip(self._thetas, self._states)
         )
 

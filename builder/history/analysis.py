@@ -2,14 +2,15 @@
 from __future__ import annotations
 
 from collections.abc import Callable, Iterator, Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from builder.engine import GeometryError, size_build
+from builder.engine.flags import EFFORT_CODES, effort_band_flags
 from builder.engine.result import Sizing
 from builder.history.calibration import Calibration, Prediction, calibrate
 from builder.history.deltas import Deltas, deltas
 from builder.history.similar import SimilarBuild, SimilarityIndex
-from builder.model import Build, Shop
+from builder.model import Build, Shop, ShopRules
 from builder.problems import InputError, Problem
 
 
@@ -82,12 +83,15 @@ def analyse(shop: Shop, k: int = 5,
     pairs = [(b, sizings[b.id]) for b in shop.builds]
     calibration = calibrate(pairs)
     index = SimilarityIndex(pairs, system=shop.rules.display_units)
+    predictions = {b.id: calibration.predict(b, s) for b, s in pairs}
+    sizings = {b.id: judged_on_calibrated_effort(s, predictions[b.id], shop.rules)
+               for b, s in pairs}
     return Analysis(
         shop=shop,
         sizings=sizings,
         deltas={b.id: deltas(b, s) for b, s in pairs},
         calibration=calibration,
-        predictions={b.id: calibration.predict(b, s) for b, s in pairs},
+        predictions=predictions,
         similar=SimilarLists(builds, sizings, index, k),
         index=index,
         k=k,
@@ -105,9 +109,24 @@ def analyse_proposal(analysis: Analysis, build: Build, k: int | None = None
     except GeometryError as error:
         raise InputError([_geometry_problem(build, error)]) from None
     prediction = analysis.calibration.predict(build, sizing)
+    sizing = judged_on_calibrated_effort(sizing, prediction, analysis.shop.rules)
     similar = analysis.index.query(build, sizing, k=analysis.k if k is None else k,
                                    exclude_id=build.id)
     return sizing, prediction, similar, deltas(build, sizing)
+
+
+def judged_on_calibrated_effort(sizing: Sizing, prediction: Prediction,
+                                rules: ShopRules) -> Sizing:
+    """The sizing with its effort-band flags judged on the calibrated effort, when known.
+
+    The shop's band is about what the driver will feel, so once history calibrates the
+    effort the flag follows that figure; every computed value stays as the engine gave it.
+    """
+    if prediction.effort is None:
+        return sizing
+    kept = tuple(f for f in sizing.flags if f.code not in EFFORT_CODES)
+    return replace(sizing, flags=kept + tuple(effort_band_flags(prediction.effort, rules,
+                                                                "Calibrated")))
 
 
 def _geometry_problem(build: Build, error: GeometryError) -> Problem:

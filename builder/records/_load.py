@@ -41,6 +41,7 @@ def _load(path: Path, schema: str, convert: Callable[[dict, f.Reporter], object]
     for where, unknown_key, field, message in schema_problems(schema, doc.data):
         if not unknown_key:
             report.bad.append(where)
+            message += f.accepted(f.range_key(schema, where, doc.data))
         report(where, message, at_key=unknown_key, field=field)
     result = None if report.blocked(()) else convert(doc.data, report)
     return (None, report.problems) if report.problems else (result, [])
@@ -275,20 +276,25 @@ def _id_position(path: Path) -> tuple[int, int]:
 
 
 def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress | None,
-            all_in_builds: bool = False) -> tuple[list[model.Build], list[Problem]]:
-    """Load build files; `all_in_builds` when every path was found under records/builds/."""
-    builds, problems, in_builds = [], [], []
+            in_builds: set[Path] | None = None,
+            listing: list[Path] | None = None) -> tuple[list[model.Build], list[Problem]]:
+    """Load build files. `in_builds`: those of `paths` under records/builds/ (None: all of
+    them, and `paths` is then the listing of records/builds/); `listing`: that listing when
+    the caller already has it."""
+    builds, problems, inside_builds = [], [], []
     for done, path in enumerate(paths, 1):
-        inside = all_in_builds or _inside(path, root / "builds")
+        inside = in_builds is None or path in in_builds
         build, found = _load_build(path, catalogue, inside)
         problems += found
         if build is not None:
             builds.append(build)
         if inside:
-            in_builds.append(path)
+            inside_builds.append(path)
         if progress is not None:
             progress(done, len(paths))
-    return builds, problems + _duplicate_ids(root / "builds", in_builds, paths if all_in_builds else None)
+    if in_builds is None:
+        listing = paths
+    return builds, problems + _duplicate_ids(root / "builds", inside_builds, listing)
 
 
 def load_shop(records_dir: str | os.PathLike, progress: Progress | None = None) -> model.Shop:
@@ -299,7 +305,7 @@ def load_shop(records_dir: str | os.PathLike, progress: Progress | None = None) 
     root = Path(records_dir)
     rules, problems = _rules(root)
     catalogue, found = _catalogue(root)
-    builds, found_in_builds = _builds(root, catalogue, _yaml_files(root / "builds"), progress, all_in_builds=True)
+    builds, found_in_builds = _builds(root, catalogue, _yaml_files(root / "builds"), progress)
     problems += found + found_in_builds
     if problems:
         raise InputError(problems)
@@ -323,14 +329,18 @@ def validate_paths(records_dir: str | os.PathLike, paths: Iterable[str | os.Path
             targets.append(given)
         else:
             problems.append(Problem(str(given), 0, 0, "file", "no such file or folder"))
+    listing = None
     if not paths:
-        targets = [root / "shop.yaml", *_yaml_files(root / "parts"), *_yaml_files(root / "builds")]
-    shop_file = (root / "shop.yaml").resolve()
-    if any(path.resolve() == shop_file for path in targets):
+        listing = _yaml_files(root / "builds")
+        targets = [root / "shop.yaml", *_yaml_files(root / "parts"), *listing]
+    real = {path: path.resolve() for path in targets}  # each path resolved once
+    shop_file, parts_dir, builds_dir = ((root / name).resolve() for name in ("shop.yaml", "parts", "builds"))
+    if shop_file in real.values():
         problems += _rules(root)[1]
     catalogue, found = _catalogue(root)
-    build_paths = [path for path in targets if path.resolve() != shop_file and not _inside(path, root / "parts")]
-    if found and (build_paths or any(_inside(path, root / "parts") for path in targets)):
+    build_paths = [path for path in targets if real[path] != shop_file and not real[path].is_relative_to(parts_dir)]
+    if found and (build_paths or any(real[path].is_relative_to(parts_dir) for path in targets)):
         problems += found
-    problems += _builds(root, catalogue, build_paths, progress)[1]
+    in_builds = {path for path in build_paths if real[path].is_relative_to(builds_dir)}
+    problems += _builds(root, catalogue, build_paths, progress, in_builds, listing)[1]
     return sorted(set(problems), key=lambda p: (p.path, p.line, p.col, p.field))

@@ -14,7 +14,7 @@ from builder import model
 from builder.problems import Problem
 from builder.records._schema import dotted
 from builder.records._yaml import Located, NeedsCare
-from builder.units import QuantityError, check_range, parse_quantity
+from builder.units import QuantityError, check_range, parse_quantity, show
 
 # field path -> (dimension, lowest, highest); a negative lowest allows negative values
 _RANGES: dict[str, tuple[str, str, str]] = {
@@ -134,9 +134,36 @@ def quantity(value: object, key: str, report: Reporter, where: tuple) -> float |
         result = parse_quantity(value, dimension, signed=low < 0)
         check_range(result, low, high, dimension, value)
     except QuantityError as error:
-        report(where, str(error))
+        message = str(error)
+        report(where, message if "plausible range" in message else message + accepted(key))
         return None
     return result
+
+
+def accepted(key: str | None) -> str:
+    """"; this field accepts 0.118 in (3 mm) to 2.362 in (60 mm)" for a PLAUSIBLE key, else ""."""
+    if key not in PLAUSIBLE:
+        return ""
+    dimension, low, high = PLAUSIBLE[key]
+    return f"; this field accepts {show(low, dimension)} to {show(high, dimension)}"
+
+
+def range_key(schema: str, where: tuple, data: object) -> str | None:
+    """The PLAUSIBLE key of the value at `where` in a document of `schema`, or None."""
+    if schema == "shop":
+        return f"shop.{where[0]}" if where and isinstance(where[0], str) else None
+    if schema == "parts":
+        kind = data.get("kind") if isinstance(data, dict) else None
+        section = SECTION_OF_KIND.get(kind) if isinstance(kind, str) else None
+        where = (section, *where[2:]) if section and where[:1] == ("parts",) else ()
+    if len(where) < 2:
+        return None
+    section, name, *rest = where
+    if name == "load_curve" and len(rest) == 2 and rest[1] in (0, 1):
+        return f"clutch.load_curve.{('travel', 'load')[rest[1]]}"
+    if name == "layout" and rest:
+        return "pedal.layout.rotation_to_stop" if rest[0] == "rotation_to_stop" else "pedal.layout.point"
+    return f"{section}.{name}"
 
 
 def text(value: object) -> str | None:
