@@ -80,7 +80,14 @@ def _spreadsheet_safe(value):
     return value
 
 
-def render(rows: list[dict], fmt: str, safe: Callable[[str | None], str]) -> str:
+# The terminal table keeps what fits a wide terminal; CSV and JSON carry every column.
+REPORT_TABLE_COLUMNS = ("id", "date", "status", "family", "fork_tip_moves", "master_bore_mm",
+                        "slave_bore_mm", "pedal_ratio", "overall_ratio", "computed_effort_N",
+                        "measured_effort_N", "effort_delta_pct", "travel_margin_pct", "flags")
+
+
+def render(rows: list[dict], fmt: str, safe: Callable[[str | None], str],
+           table_columns: tuple[str, ...] | None = None) -> str:
     """Rows as an aligned text table, CSV (header first) or a JSON array."""
     if fmt == "json":
         return json.dumps(rows, indent=2, ensure_ascii=True) + "\n"
@@ -94,6 +101,8 @@ def render(rows: list[dict], fmt: str, safe: Callable[[str | None], str]) -> str
         for row in rows:
             writer.writerow(["" if row[h] is None else _spreadsheet_safe(row[h]) for h in headers])
         return buffer.getvalue()
+    if table_columns:
+        headers = [h for h in headers if h in table_columns]
     cells = [[_text(row[h], safe) for h in headers] for row in rows]
     widths = [max(len(h), *(len(c[i]) for c in cells)) for i, h in enumerate(headers)]
     out = ["  ".join(h.ljust(w) for h, w in zip(headers, widths))]

@@ -8,11 +8,11 @@ from __future__ import annotations
 import difflib
 import functools
 import json
-from pathlib import Path
 
+from builder.resources import data_dir
 from builder.units import QuantityError, parse_quantity
 
-SCHEMA_DIR = Path(__file__).resolve().parents[2] / "schema"
+SCHEMA_DIR = data_dir("schema")
 _QUANTITY_DEFS = ("length", "signed_length", "area", "force", "pressure", "angle", "hose_expansion", "fraction")
 _SKIPPED = ("anyOf", "not")  # section completeness and bore-or-area: the records code words these
 

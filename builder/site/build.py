@@ -16,10 +16,11 @@ from pathlib import Path
 from typing import Any
 
 from builder.problems import InputError, Problem
+from builder.resources import data_dir
 from builder.site.escape import plain
 from builder.site.pages import generated_pages, method_appendix
 
-PACKAGED_SITE_SRC = Path(__file__).resolve().parents[2] / "site_src"
+PACKAGED_SITE_SRC = data_dir("site_src")
 MARKER = ".fitment-site"  # written into every site we build; only such a folder is replaced
 CONFIG = "mkdocs.yml"
 THEME_DIR = "overrides"
