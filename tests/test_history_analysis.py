@@ -126,3 +126,19 @@ def test_effort_band_is_judged_on_the_calibrated_effort():
     assert flagged.flags[1].message.startswith("Calibrated pedal effort")
     unknown = Prediction(effort=None, interval=None, n_builds=1, basis="", note="not enough")
     assert judged_on_calibrated_effort(sizing, unknown, rules) is sizing
+
+
+def test_effort_curve_is_sized_on_demand_and_matches_a_full_sizing():
+    # the whole-shop pass leaves the plotted series out; asking for it gives the engine's own
+    from builder.model import Clutch
+    from test_engine_factories import make_rules
+
+    rules = make_rules()
+    base = make_build("QX-001")
+    curve = ((0.0, 0.0), (0.003, 1500.0), (0.007, 1800.0), (0.010, 1600.0))
+    build = dataclasses.replace(base, clutch=dataclasses.replace(base.clutch, load_curve=curve))
+    analysis = analyse(Shop(root=".", rules=rules, builds=(build,)))
+    assert analysis.sizings["QX-001"].effort_curve is None
+    full = size_build(build, rules)
+    assert analysis.effort_curve("QX-001") == full.effort_curve
+    assert full.effort_curve is not None

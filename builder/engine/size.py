@@ -34,8 +34,13 @@ def pedal_linkage(pedal: Pedal) -> LeverPedal | SliderCrankPedal:
     return LeverPedal(pedal.pivot_to_pad, pedal.pivot_to_clevis, pedal.pad_travel)
 
 
-def size_build(build: Build, rules: ShopRules, efficiency: float | None = None) -> Sizing:
+def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
+               with_curve: bool = True) -> Sizing:
     """Size one build (DESIGN section 4). efficiency None = rules.default_efficiency.
+
+    with_curve False leaves out the plotted effort-against-pad-travel series
+    (effort_curve None), about half the cost of a build with a load curve, for callers
+    that need only the figures.
 
     Raises GeometryError (a ValueError with a plain message) when a pedal layout
     cannot push the master at all.
@@ -82,7 +87,7 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None) 
     ratio = overall_ratio(r_p, r_h, r_f)
     effort = ideal_effort(clutch.release_load, ratio)
     curve = None
-    if clutch.load_curve:
+    if clutch.load_curve and with_curve:
         curve = effort_curve(
             pedal, clutch.load_curve, clutch.clearance, bearing, stroke_used,
             (master_area, slave_area), r_f, compliance, eff,

@@ -2,7 +2,7 @@
 from __future__ import annotations
 
 from collections.abc import Callable, Iterator, Mapping
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 from builder.engine import GeometryError, size_build
 from builder.engine.flags import EFFORT_CODES, effort_band_flags
@@ -52,6 +52,21 @@ class Analysis:
     similar: SimilarLists  # every build, computed on first access
     index: SimilarityIndex
     k: int = 5
+    _curves: dict[str, tuple[tuple[float, float], ...] | None] = field(default_factory=dict)
+
+    def effort_curve(self, build_id: str) -> tuple[tuple[float, float], ...] | None:
+        """(pad travel m, pad effort N) for a build with a load curve, else None.
+
+        Sized again with the series on first use: the whole-shop pass leaves it out.
+        """
+        sizing = self.sizings[build_id]
+        if sizing.effort_curve is not None:
+            return sizing.effort_curve
+        if build_id not in self._curves:
+            build = next(b for b in self.shop.builds if b.id == build_id)
+            self._curves[build_id] = None if not build.clutch.load_curve else size_build(
+                build, self.shop.rules, efficiency=sizing.efficiency).effort_curve
+        return self._curves[build_id]
 
     def similar_for(self, build_id: str, k: int | None = None) -> list[SimilarBuild]:
         """The most similar measured builds to a recorded build, itself left out."""
@@ -73,7 +88,7 @@ def analyse(shop: Shop, k: int = 5,
     problems: list[Problem] = []
     for done, build in enumerate(shop.builds, start=1):
         try:
-            sizings[build.id] = size_build(build, shop.rules)
+            sizings[build.id] = size_build(build, shop.rules, with_curve=False)
         except GeometryError as error:
             problems.append(_geometry_problem(build, error))
         if progress is not None:

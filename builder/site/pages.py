@@ -470,8 +470,9 @@ def build_files(data: SiteData, build: Build) -> Iterator[tuple[str, str]]:
     if sizing is not None:
         yield f"builds/{name}-linkage.svg", linkage_svg(data, build, sizing)
         pictures.append("linkage")
-        if sizing.effort_curve:
-            yield f"builds/{name}-effort.svg", effort_curve_svg(data, build, sizing)
+        curve = data.analysis.effort_curve(build.id)
+        if curve:
+            yield f"builds/{name}-effort.svg", effort_curve_svg(data, build, sizing, curve)
             pictures.append("effort")
     yield f"builds/{name}.md", build_page(data, build, sizing, pictures)
 
@@ -644,10 +645,11 @@ def simple_poses(build: Build, sizing: Any) -> tuple[tuple, tuple]:
     return pose(0.0, 0.0), pose(swing, sizing.master_stroke_used)
 
 
-def effort_curve_svg(data: SiteData, build: Build, sizing: Any) -> str:
+def effort_curve_svg(data: SiteData, build: Build, sizing: Any,
+                     curve: tuple[tuple[float, float], ...]) -> str:
     show = data.show
     points = [(show.chart_value(t, "length"), show.chart_value(f, "force"))
-              for t, f in sizing.effort_curve]
+              for t, f in curve]
     low, high = data.rules.effort_band
     markers = []
     if sizing.pad_travel_to_release is not None:
