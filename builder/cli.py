@@ -43,6 +43,11 @@ def fail(problems: list[Problem]) -> None:
     sys.exit(1)
 
 
+def echo_safe(text: str, nl: bool = True) -> None:
+    """Echo output holding record text with terminal_safe (CSV keeps its CRLF line ends)."""
+    click.echo("\r\n".join(terminal_safe(line) for line in text.split("\r\n")), nl=nl)
+
+
 def terminal_safe(text: str | None) -> str:
     """Record text for a terminal: control characters (escape sequences) shown, not obeyed."""
     if text is None:
@@ -94,12 +99,16 @@ def _run(action):
 @click.pass_obj
 def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
     """Check the shop rules, parts catalogue and build records (or only PATHS)."""
-    from builder.records import validate_paths
+    from builder.history import geometry_problems
+    from builder.records import validate_and_load
 
-    problems = validate_paths(ctx.records, list(paths), progress=progress_reporter("validating"))
+    rules, builds, problems = validate_and_load(ctx.records, list(paths),
+                                                progress=progress_reporter("validating"))
+    if rules is not None:  # sizing finds pedal layouts that cannot push their master
+        problems += geometry_problems(builds, rules)
     if problems:
         fail(problems)
-    click.echo("All records valid.")
+    click.echo(f"All records valid ({len(builds)} builds).")
 
 
 @main.command()
@@ -112,14 +121,15 @@ def check(ctx: Context, file: Path, as_json: bool, k: int) -> None:
     """Size one build or proposal FILE and compare it with the shop's history."""
     from builder import sizing_report
 
-    result = _run(lambda: sizing_report.check_file(ctx.analysis(), file, k))
+    analysis = _run(lambda: ctx.analysis(progress=progress_reporter("loading")))
+    result = _run(lambda: sizing_report.check_file(analysis, file, k))
     if as_json:
         import json
 
         click.echo(json.dumps(sizing_report.contract(result), indent=2, ensure_ascii=True))
     else:
-        click.echo(sizing_report.describe(result, terminal_safe,
-                                            ctx.analysis().shop.rules.display_units))
+        echo_safe(sizing_report.describe(result, terminal_safe,
+                                         ctx.analysis().shop.rules.display_units))
         if any(flag.severity == "fail" for flag in result.sizing.flags):
             click.echo("")
             click.echo(CAUTION)
@@ -133,9 +143,9 @@ def report(ctx: Context, fmt: str) -> None:
     """One row per build: ratios, computed and measured effort, margin, flags."""
     from builder import tables
 
-    analysis = _run(ctx.analysis)
+    analysis = _run(lambda: ctx.analysis(progress=progress_reporter("loading")))
     rows = tables.report_rows(analysis)
-    click.echo(tables.render(rows, fmt, terminal_safe), nl=False)
+    echo_safe(tables.render(rows, fmt, terminal_safe, tables.REPORT_TABLE_COLUMNS), nl=False)
 
 
 @main.command()
@@ -144,8 +154,8 @@ def calibration(ctx: Context) -> None:
     """Apparent efficiency and travel loss per gearbox family, with leave-one-out error."""
     from builder import tables
 
-    analysis = _run(ctx.analysis)
-    click.echo(tables.render(tables.calibration_rows(analysis), "table", terminal_safe), nl=False)
+    analysis = _run(lambda: ctx.analysis(progress=progress_reporter("loading")))
+    echo_safe(tables.render(tables.calibration_rows(analysis), "table", terminal_safe), nl=False)
 
 
 @main.command()

@@ -51,12 +51,6 @@ pedal:
 """
 
 
-def _existing_ids(builds_dir: Path) -> dict[str, Path]:
-    if not builds_dir.is_dir():
-        return {}
-    return {path.stem: path for path in builds_dir.rglob("*.yaml")}
-
-
 def _modeline(new_file: Path, records: Path) -> str:
     schema = records.resolve().parent / "schema" / "build.schema.json"
     relative = os.path.relpath(schema, new_file.resolve().parent)
@@ -100,13 +94,13 @@ def create(records: Path, build_id: str, like_id: str | None,
 
     today = today or dt.date.today()
     where = "new"
-    if not re.match(BUILD_ID_PATTERN, build_id):
+    if not re.fullmatch(BUILD_ID_PATTERN, build_id):  # re.match would let "AB-0123\n" through
         raise InputError([Problem(where, 0, 0, "id",
                                   f"expected an id like AB-0123 ({BUILD_ID_PATTERN}), "
                                   f"found {build_id!r}")])
     shop = load_shop(records)
     builds_dir = records / "builds"
-    existing = _existing_ids(builds_dir)
+    existing = {build.id: Path(build.path) for build in shop.builds}  # loaded, so readable
     if build_id in existing:
         raise InputError([Problem(str(existing[build_id]), 0, 0, "id",
                                   f"{build_id} already exists; nothing was written")])

@@ -12,6 +12,7 @@ from builder.history.deltas import Deltas, deltas
 from builder.history.similar import SimilarBuild, SimilarityIndex
 from builder.model import Build, Shop, ShopRules
 from builder.problems import InputError, Problem
+from builder.records import locate
 
 
 class SimilarLists(Mapping[str, list[SimilarBuild]]):
@@ -144,5 +145,18 @@ def judged_on_calibrated_effort(sizing: Sizing, prediction: Prediction,
                                                                 "Calibrated")))
 
 
+def geometry_problems(builds: list[Build], rules: ShopRules) -> list[Problem]:
+    """A located problem for every build whose pedal layout cannot push its master."""
+    problems = []
+    for build in builds:
+        try:
+            size_build(build, rules, with_curve=False)
+        except GeometryError as error:
+            problems.append(_geometry_problem(build, error))
+    return problems
+
+
 def _geometry_problem(build: Build, error: GeometryError) -> Problem:
-    return Problem(build.path or build.id, 0, 0, "pedal.layout", str(error))
+    """The engine's word on a layout, placed at the record's `pedal.layout` line."""
+    line, col = locate(build.path, "pedal.layout") if build.path else (0, 0)
+    return Problem(build.path or build.id, line, col, "pedal.layout", str(error))

@@ -36,7 +36,7 @@ def _load(path: Path, schema: str, convert: Callable[[dict, f.Reporter], object]
     doc = careful_load(text)
     report = f.Reporter(shown, doc)
     report.problems.extend(Problem(shown, line, col, dotted(where), message) for where, line, col, message in doc.problems)
-    if doc.data is None:
+    if doc.data is None and report.problems:  # unreadable; a document of just `null` goes on
         return None, report.problems
     for where, unknown_key, field, message in schema_problems(schema, doc.data):
         if not unknown_key:
@@ -92,6 +92,8 @@ def _parts_converter(path: Path, taken: dict[str, str]) -> Callable[[dict, f.Rep
     """Converts one parts file; `taken` maps part ids already loaded to their file."""
 
     def convert(data: dict, report: f.Reporter) -> list[model.Part]:
+        if report.blocked(("kind",)) or report.blocked(("parts",)):
+            return []
         kind = data["kind"]
         if kind != path.stem:
             report(("kind",), f"kind {kind!r} must equal the file name {path.stem!r}")
@@ -100,7 +102,7 @@ def _parts_converter(path: Path, taken: dict[str, str]) -> Callable[[dict, f.Rep
         parts = []
         for index, raw in enumerate(data["parts"]):
             where = ("parts", index)
-            if report.blocked(where) or not isinstance(raw, dict):
+            if report.blocked(where) or report.blocked(where + ("id",)) or not isinstance(raw, dict):
                 continue
             part_id = raw["id"]
             if part_id in here or part_id in taken:
@@ -193,6 +195,8 @@ def _section(data: dict, name: str, catalogue: dict, report: f.Reporter):
     values = f.convert_fields(name, raw, report, where)
     part_id = raw.get("part") if name in f.CATALOGUE_KIND else None
     if part_id is not None:
+        if report.blocked(where + ("part",)):  # the schema already said what is wrong with it
+            return None
         part = _find_part(catalogue, name, part_id, report, where + ("part",))
         if part is None:
             return None
@@ -264,23 +268,23 @@ def _duplicate_ids(builds_dir: Path, checked: Iterable[Path], listing: list[Path
     for path in checked:
         original = first.get(path.stem)
         if original is not None and original != path and original.resolve() != path.resolve():
-            line, col = _id_position(path)
+            line, col = locate(path, "id")
             problems.append(Problem(str(path), line, col, "id", f"build id {path.stem} is already used by "
                                     f"{original}; ids must be unique across {builds_dir}"))
     return problems
 
 
-def _id_position(path: Path) -> tuple[int, int]:
-    text, _ = read_text(path)
-    return careful_load(text).where(("id",)) if text else (0, 0)
+def locate(path: str | os.PathLike, field: str) -> tuple[int, int]:
+    """Line and column of a dotted field such as "pedal.layout" in a YAML file; (0, 0) when
+    the file cannot be read."""
+    text, _ = read_text(Path(path))
+    return careful_load(text).where(tuple(field.split("."))) if text else (0, 0)
 
 
 def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress | None,
-            in_builds: set[Path] | None = None,
-            listing: list[Path] | None = None) -> tuple[list[model.Build], list[Problem]]:
-    """Load build files. `in_builds`: those of `paths` under records/builds/ (None: all of
-    them, and `paths` is then the listing of records/builds/); `listing`: that listing when
-    the caller already has it."""
+            in_builds: set[Path] | None = None) -> tuple[list[model.Build], list[Problem]]:
+    """Load build files. `in_builds`: those of `paths` under records/builds/; None when
+    `paths` is the listing of records/builds/ itself."""
     builds, problems, inside_builds = [], [], []
     for done, path in enumerate(paths, 1):
         inside = in_builds is None or path in in_builds
@@ -292,8 +296,7 @@ def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress |
             inside_builds.append(path)
         if progress is not None:
             progress(done, len(paths))
-    if in_builds is None:
-        listing = paths
+    listing = paths if in_builds is None else None
     return builds, problems + _duplicate_ids(root / "builds", inside_builds, listing)
 
 
@@ -318,7 +321,16 @@ def validate_paths(records_dir: str | os.PathLike, paths: Iterable[str | os.Path
 
     `progress(done, total)` is called after each build file.
     """
+    return validate_and_load(records_dir, paths, progress)[2]
+
+
+def validate_and_load(records_dir: str | os.PathLike, paths: Iterable[str | os.PathLike] = (),
+                      progress: Progress | None = None
+                      ) -> tuple[model.ShopRules | None, list[model.Build], list[Problem]]:
+    """As validate_paths, also giving the shop rules (None when unusable) and every build
+    among the paths that loaded, so a caller can size them without loading them again."""
     root = Path(records_dir)
+    rules = None
     paths = list(paths)
     targets: list[Path] = []
     problems: list[Problem] = []
@@ -329,18 +341,24 @@ def validate_paths(records_dir: str | os.PathLike, paths: Iterable[str | os.Path
             targets.append(given)
         else:
             problems.append(Problem(str(given), 0, 0, "file", "no such file or folder"))
-    listing = None
-    if not paths:
-        listing = _yaml_files(root / "builds")
-        targets = [root / "shop.yaml", *_yaml_files(root / "parts"), *listing]
-    real = {path: path.resolve() for path in targets}  # each path resolved once
-    shop_file, parts_dir, builds_dir = ((root / name).resolve() for name in ("shop.yaml", "parts", "builds"))
-    if shop_file in real.values():
-        problems += _rules(root)[1]
-    catalogue, found = _catalogue(root)
-    build_paths = [path for path in targets if real[path] != shop_file and not real[path].is_relative_to(parts_dir)]
-    if found and (build_paths or any(real[path].is_relative_to(parts_dir) for path in targets)):
+    if not paths:  # the whole folder: where each file sits is known without resolving it
+        rules, found = _rules(root)
         problems += found
-    in_builds = {path for path in build_paths if real[path].is_relative_to(builds_dir)}
-    problems += _builds(root, catalogue, build_paths, progress, in_builds, listing)[1]
-    return sorted(set(problems), key=lambda p: (p.path, p.line, p.col, p.field))
+        catalogue, found = _catalogue(root)
+        problems += found
+        build_paths, in_builds = _yaml_files(root / "builds"), None
+    else:
+        real = {path: path.resolve() for path in targets}  # each path resolved once
+        shop_file, parts_dir, builds_dir = ((root / name).resolve() for name in ("shop.yaml", "parts", "builds"))
+        rules, found = _rules(root)
+        if shop_file in real.values():
+            problems += found
+        catalogue, found = _catalogue(root)
+        build_paths = [path for path in targets
+                       if real[path] != shop_file and not real[path].is_relative_to(parts_dir)]
+        if found and (build_paths or any(real[path].is_relative_to(parts_dir) for path in targets)):
+            problems += found
+        in_builds = {path for path in build_paths if real[path].is_relative_to(builds_dir)}
+    builds, found = _builds(root, catalogue, build_paths, progress, in_builds)
+    problems += found
+    return rules, builds, sorted(set(problems), key=lambda p: (p.path, p.line, p.col, p.field))

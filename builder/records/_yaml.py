@@ -109,9 +109,12 @@ def read_text(path: Path) -> tuple[str | None, tuple[int, int, str] | None]:
         size = path.stat().st_size
         if size > MAX_BYTES:
             return None, (0, 0, f"file is {size} bytes; records are limited to {MAX_BYTES} bytes")
-        raw = path.read_bytes()[: MAX_BYTES + 1]
+        with path.open("rb") as handle:
+            raw = handle.read(MAX_BYTES + 1)  # the file may have grown since stat
     except OSError as error:
         return None, (0, 0, f"cannot read: {error.strerror or error}")
+    if len(raw) > MAX_BYTES:
+        return None, (0, 0, f"file is over {MAX_BYTES} bytes; records are limited to {MAX_BYTES} bytes")
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as error:
@@ -138,6 +141,12 @@ def _nesting_problem(text: str) -> tuple[int, int, str] | None:
         if depth > MAX_FLOW_DEPTH:
             return (*_line_col(text, bracket.start()), f"nesting is deeper than {MAX_FLOW_DEPTH} levels")
     return None
+
+
+def _char_at(text: str, line: int, column: int) -> str:
+    """The character at a 0-based line and column ("" past the end)."""
+    lines = text.split("\n")
+    return lines[line][column:column + 1] if line < len(lines) else ""
 
 
 def _line_col(text: str, offset: int) -> tuple[int, int]:
@@ -180,6 +189,8 @@ def careful_load(text: str) -> Located:
         mark = error.problem_mark or error.context_mark
         message = " ".join(filter(None, [error.context, error.problem]))
         line_col = (mark.line + 1, mark.column + 1) if mark else (1, 1)
+        if mark and "tab" not in message and _char_at(text, mark.line, mark.column) == "\t":
+            message += " (a tab: YAML indents with spaces only)"
         doc.problems.append(((), *line_col, f"YAML: {message}"))
     except yaml.YAMLError as error:
         position = getattr(error, "position", None)
@@ -217,7 +228,8 @@ def _graph_problems(root) -> list[tuple[Where, int, int, str]]:
             open_nodes.discard(key)
             sizes[key] = 1 + sum(sizes[id(child)] for child in _children(node))
             if sizes[key] > MAX_NODES:
-                return [((), *_mark(node), f"expands to more than {MAX_NODES} values through anchors and aliases")]
+                how = " through anchors and aliases" if aliases else ""
+                return [((), *_mark(node), f"expands to more than {MAX_NODES} values{how}; a record holds far fewer")]
             continue
         if key in sizes:
             aliases += 1

@@ -1,0 +1,282 @@
+"""Property-based fuzzing of the records loader and of `fitment check`.
+
+Mutated demo records (keys deleted, values swapped for other types, random numbers, units
+and unicode in quantity fields), random bytes and random YAML documents must never raise
+out of the tool: the only outcomes are success or builder.problems.InputError with located
+problems. What `check` prints for a loaded build must be strict JSON (RFC 8259 has no NaN or
+Infinity) and plain text.
+
+The default run is small. The long run (10,000 examples per property, or FUZZ_EXAMPLES):
+    FUZZ_EXAMPLES=10000 .venv/bin/python -m pytest -q -m slow tests/test_fuzz.py
+"""
+from __future__ import annotations
+
+import copy
+import json
+import os
+import shutil
+from pathlib import Path
+
+import pytest
+import yaml
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from builder import sizing_report
+from builder.cli import terminal_safe
+from builder.history import analyse
+from builder.problems import InputError, Problem
+from builder.model import Build
+from builder.records import load_build_file, load_catalogue, load_rules, load_shop, validate_paths
+
+ROOT = Path(__file__).resolve().parents[1]
+QUICK = 120
+LONG = int(os.environ.get("FUZZ_EXAMPLES", "10000"))
+DEMO_BUILDS = sorted((ROOT / "records" / "builds").rglob("*.yaml"))
+SEEDS = [DEMO_BUILDS[i] for i in (0, len(DEMO_BUILDS) // 3, len(DEMO_BUILDS) // 2, -1)]
+LAYOUT_SEED = next(p for p in DEMO_BUILDS if "layout:" in p.read_text())
+CONCENTRIC_SEED = next(p for p in DEMO_BUILDS if "concentric" in p.read_text())
+SEED_TEXTS = [p.read_text() for p in [*SEEDS, LAYOUT_SEED, CONCENTRIC_SEED]]
+SEED_DOCS = [yaml.safe_load(text) for text in SEED_TEXTS]
+SHOP_DOC = yaml.safe_load((ROOT / "records" / "shop.yaml").read_text())
+MASTERS_DOC = yaml.safe_load((ROOT / "records" / "parts" / "masters.yaml").read_text())
+
+
+class Env:
+    """A private copy of the demo shop, its analysis, and scratch files for each example."""
+
+    def __init__(self, base: Path):
+        shutil.copytree(ROOT / "records", base / "records")
+        shutil.copytree(ROOT / "schema", base / "schema")
+        self.records = base / "records"
+        self.analysis = analyse(load_shop(self.records))
+        self.in_records = self.records / "builds" / "2099" / "FZ-0001.yaml"
+        self.in_records.parent.mkdir()
+        self.proposal = base / "proposal.yaml"
+
+
+@pytest.fixture(scope="module")
+def env(tmp_path_factory) -> Env:
+    return Env(tmp_path_factory.mktemp("fuzz"))
+
+
+@pytest.fixture(scope="module")
+def long_run(request):
+    """Runs the slow properties only when asked for: -m slow, or FUZZ_EXAMPLES set."""
+    wanted = request.config.getoption("-m") or ""
+    if "slow" not in wanted.replace("not slow", "") and "FUZZ_EXAMPLES" not in os.environ:
+        pytest.skip("long fuzzing run: select it with -m slow or FUZZ_EXAMPLES=N")
+
+
+# --- strategies --------------------------------------------------------------------------------
+
+UNITS = ["in", "mm", "m", "cm", "ft", "lbf", "N", "kN", "psi", "kPa", "MPa", "GPa", "bar", "deg",
+         "rad", "%", "in^2", "mm^2", "mL", "mL/m/MPa", "in**2/in", "m**3", "parsec", "degC",
+         "kelvin", "lbf*in", "Hz", "µm", "°", "percent", "dimensionless", "in in", "m/s"]
+NUMBERS = st.one_of(
+    st.floats(allow_nan=True, allow_infinity=True).map(repr),
+    st.integers(-10**30, 10**30).map(str),
+    st.tuples(st.integers(-99, 99), st.integers(-9, 99)).map(lambda p: f"{p[0]}/{p[1]}"),
+    st.tuples(st.integers(0, 9), st.integers(0, 99), st.integers(0, 99)).map(
+        lambda p: f"{p[0]}-{p[1]}/{p[2]}"),
+    st.text(max_size=6),
+)
+QUANTITY_TEXT = st.builds(lambda number, gap, unit: f"{number}{gap}{unit}", NUMBERS,
+                          st.sampled_from(["", " ", "  ", "\t"]),
+                          st.one_of(st.sampled_from(UNITS), st.text(max_size=8)))
+SCALARS = st.one_of(st.none(), st.booleans(), st.integers(), st.floats(),
+                    st.text(max_size=40), QUANTITY_TEXT)
+ANY_VALUE = st.recursive(SCALARS, lambda inner: st.one_of(
+    st.lists(inner, max_size=4), st.dictionaries(st.text(max_size=10), inner, max_size=4)),
+    max_leaves=12)
+
+
+def _places(value, prefix=()):
+    """Every (container path, key or index) inside a document."""
+    if isinstance(value, dict):
+        items = value.items()
+    elif isinstance(value, list):
+        items = enumerate(value)
+    else:
+        return
+    for key, item in items:
+        yield prefix, key
+        yield from _places(item, prefix + (key,))
+
+
+def _at(doc, path):
+    for step in path:
+        doc = doc[step]
+    return doc
+
+
+@st.composite
+def mutated(draw, docs):
+    """A demo document with one to four edits: a key dropped, a value replaced by anything,
+    by a random quantity string or by random unicode, or an unknown key added."""
+    doc = copy.deepcopy(draw(st.sampled_from(docs)))
+    for _ in range(draw(st.integers(1, 4))):
+        places = list(_places(doc))
+        if not places:
+            break
+        path, key = draw(st.sampled_from(places))
+        parent = _at(doc, path)
+        action = draw(st.sampled_from(["drop", "any", "quantity", "unicode", "add"]))
+        if action == "drop":
+            del parent[key]
+        elif action == "add" and isinstance(parent, dict):
+            parent[draw(st.text(max_size=12))] = draw(ANY_VALUE)
+        elif action == "quantity":
+            parent[key] = draw(QUANTITY_TEXT)
+        elif action == "unicode":
+            parent[key] = draw(st.text())
+        else:
+            parent[key] = draw(ANY_VALUE)
+    return doc
+
+
+def dump(doc) -> bytes:
+    return yaml.safe_dump(doc, allow_unicode=True, sort_keys=False).encode("utf-8")
+
+
+@st.composite
+def text_edits(draw):
+    """Demo record text with characters and bytes inserted, deleted or swapped."""
+    data = bytearray(draw(st.sampled_from(SEED_TEXTS)).encode("utf-8"))
+    for _ in range(draw(st.integers(1, 6))):
+        at = draw(st.integers(0, len(data)))
+        insert = draw(st.one_of(st.binary(max_size=4), st.sampled_from(
+            [b"\t", b":", b"- ", b"&a ", b"*a", b"!!python/object:os.system ", b"[", b"{", b"'", b'"',
+             b"\n  ", b"\xff", b"<<: ", b"? ", b"|", b"%YAML 1.1\n", b"---\n", b"\x00"]).map(bytes)))
+        cut = draw(st.integers(0, 8))
+        data[at:at + cut] = insert
+    return bytes(data)
+
+
+YAML_SCALARS = st.one_of(st.none(), st.booleans(), st.integers(), st.floats(), st.text(max_size=20))
+YAML_DOCUMENTS = st.recursive(YAML_SCALARS, lambda inner: st.one_of(
+    st.lists(inner, max_size=5), st.dictionaries(st.one_of(st.text(max_size=12), st.integers()),
+                                                 inner, max_size=5)), max_leaves=25).map(dump)
+YAML_NOISE = st.text(alphabet=st.sampled_from(list("ab1.-:[]{},&*!|>'\"#%@`? \n\t")), max_size=200)
+ANY_FILE = st.one_of(
+    mutated(SEED_DOCS).map(dump), text_edits(), st.binary(max_size=600), YAML_DOCUMENTS,
+    YAML_NOISE.map(lambda text: text.encode("utf-8")),
+)
+
+
+# --- properties --------------------------------------------------------------------------------
+
+def assert_located(problems: list[Problem], path: Path | None = None) -> None:
+    assert problems
+    for problem in problems:
+        assert problem.line >= 0 and problem.col >= 0 and problem.field and problem.message
+        assert path is None or problem.path == str(path)
+        assert str(problem).startswith(f"{problem.path}:{problem.line}:{problem.col}: ")
+
+
+def validate_never_raises(env: Env, content: bytes) -> None:
+    """validate on a file under records/builds/: problems are returned, nothing raised."""
+    env.in_records.write_bytes(content)
+    problems = validate_paths(env.records, [env.in_records])
+    if problems:
+        assert_located(problems, env.in_records)
+    else:  # accepted, so it must load as a whole build
+        assert isinstance(load_build_file(env.in_records, env.analysis.shop), Build)
+
+
+def check_never_raises(env: Env, content: bytes) -> None:
+    """check on a proposal: InputError or a result that prints as strict JSON and plain text."""
+    env.proposal.write_bytes(content)
+    try:
+        result = sizing_report.check_file(env.analysis, env.proposal, 5)
+    except InputError as error:
+        assert_located(error.problems, env.proposal)
+        return
+    json.dumps(sizing_report.contract(result), allow_nan=False)
+    text = sizing_report.describe(result, terminal_safe, "imperial")
+    assert all(ch in "\n\t" or ch >= " " for ch in terminal_safe(text))
+
+
+def rules_never_raise(env: Env, content: bytes) -> None:
+    shop_file = env.records / "shop.yaml"
+    original = shop_file.read_bytes()
+    shop_file.write_bytes(content)
+    try:
+        load_rules(env.records)
+    except InputError as error:
+        assert_located(error.problems, shop_file)
+    finally:
+        shop_file.write_bytes(original)
+
+
+def catalogue_never_raises(env: Env, content: bytes) -> None:
+    masters = env.records / "parts" / "masters.yaml"
+    original = masters.read_bytes()
+    masters.write_bytes(content)
+    try:
+        load_catalogue(env.records)
+    except InputError as error:
+        assert_located(error.problems)
+    finally:
+        masters.write_bytes(original)
+
+
+def fuzz(strategy, examples: int):
+    """given(strategy) with `examples` examples, no deadline (CI machines vary)."""
+    def wrap(prop):
+        return settings(max_examples=examples, deadline=None, database=None,
+                        suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large,
+                                               HealthCheck.filter_too_much])(given(content=strategy)(prop))
+    return wrap
+
+
+SHOP_FILES = st.one_of(mutated([SHOP_DOC]).map(dump), YAML_DOCUMENTS, st.binary(max_size=300))
+PARTS_FILES = st.one_of(mutated([MASTERS_DOC]).map(dump), YAML_DOCUMENTS, st.binary(max_size=300))
+@fuzz(ANY_FILE, QUICK)
+def test_fuzz_validate(env, content):
+    validate_never_raises(env, content)
+
+
+@fuzz(ANY_FILE, QUICK)
+def test_fuzz_check(env, content):
+    check_never_raises(env, content)
+
+
+@fuzz(SHOP_FILES, QUICK)
+def test_fuzz_shop_rules(env, content):
+    rules_never_raise(env, content)
+
+
+@fuzz(PARTS_FILES, QUICK)
+def test_fuzz_catalogue(env, content):
+    catalogue_never_raises(env, content)
+
+
+@pytest.mark.slow
+@fuzz(ANY_FILE, LONG)
+def test_fuzz_validate_long(env, long_run, content):
+    validate_never_raises(env, content)
+
+
+@pytest.mark.slow
+@fuzz(ANY_FILE, LONG)
+def test_fuzz_check_long(env, long_run, content):
+    check_never_raises(env, content)
+
+
+@pytest.mark.slow
+@fuzz(SHOP_FILES, LONG)
+def test_fuzz_shop_rules_long(env, long_run, content):
+    rules_never_raise(env, content)
+
+
+@pytest.mark.slow
+@fuzz(PARTS_FILES, LONG)
+def test_fuzz_catalogue_long(env, long_run, content):
+    catalogue_never_raises(env, content)
+
+
+def test_mutations_reach_the_engine(env):
+    """The mutation strategy is not all noise: unchanged seeds load, size and print."""
+    for text in SEED_TEXTS:
+        check_never_raises(env, text.replace("id: HW-", "id: PR-").encode())
