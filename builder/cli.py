@@ -10,7 +10,7 @@ from pathlib import Path
 
 import click
 
-from builder.problems import InputError, Problem
+from builder.problems import InputError, Problem, terminal_safe
 
 CAUTION = (
     "Caution: clutch hydraulics run at several hundred psi; brake fluid is toxic, strips "
@@ -46,17 +46,6 @@ def fail(problems: list[Problem]) -> None:
 def echo_safe(text: str, nl: bool = True) -> None:
     """Echo output holding record text with terminal_safe (CSV keeps its CRLF line ends)."""
     click.echo("\r\n".join(terminal_safe(line) for line in text.split("\r\n")), nl=nl)
-
-
-def terminal_safe(text: str | None) -> str:
-    """Record text for a terminal: control characters (escape sequences) shown, not obeyed."""
-    if text is None:
-        return ""
-    return "".join(
-        ch if (ch in "\n\t" or (ord(ch) >= 32 and ord(ch) != 127 and not 0x80 <= ord(ch) < 0xA0))
-        else f"\\x{ord(ch):02x}"
-        for ch in text
-    )
 
 
 def progress_reporter(label: str):

@@ -28,3 +28,14 @@ class InputError(Exception):
     def __init__(self, problems: list[Problem]):
         super().__init__("\n".join(str(p) for p in problems))
         self.problems = list(problems)
+
+
+def terminal_safe(text: str | None) -> str:
+    """Record text for a terminal: control characters (escape sequences) shown, not obeyed."""
+    if text is None:
+        return ""
+    return "".join(
+        ch if (ch in "\n\t" or (ord(ch) >= 32 and ord(ch) != 127 and not 0x80 <= ord(ch) < 0xA0))
+        else f"\\x{ord(ch):02x}"
+        for ch in text
+    )

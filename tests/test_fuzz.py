@@ -23,7 +23,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from builder import sizing_report
-from builder.cli import terminal_safe
+from builder.problems import terminal_safe
 from builder.history import analyse
 from builder.problems import InputError, Problem
 from builder.model import Build

@@ -12,7 +12,7 @@ from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
 from pathlib import Path
 from typing import Any
 
-from builder.problems import InputError
+from builder.problems import InputError, terminal_safe
 from builder.site.build import PACKAGED_SITE_SRC, build_site
 
 
@@ -92,7 +92,7 @@ def serve(analysis_loader: Callable[[], Any] | str | os.PathLike, host: str = "1
                     build_site(analysis_loader(), out, site_src)
                     print("Rebuilt the site.", file=sys.stderr)
                 except InputError as error:  # SiteBuildError included
-                    print(f"{error}\nKept the last good site.", file=sys.stderr)
+                    print(f"{terminal_safe(str(error))}\nKept the last good site.", file=sys.stderr)
     except KeyboardInterrupt:
         pass
     finally:
