@@ -4,6 +4,7 @@ from __future__ import annotations
 import functools
 import os
 import shutil
+import signal
 import sys
 import tempfile
 import threading
@@ -73,6 +74,7 @@ def serve(analysis_loader: Callable[[], Any] | str | os.PathLike, host: str = "1
     if not callable(analysis_loader):
         analysis_loader = records_loader(analysis_loader)
     analysis = analysis_loader()
+    _stop_on_terminate()
     work = Path(tempfile.mkdtemp(prefix="fitment-serve-"))
     out = work / "site"
     try:
@@ -97,3 +99,13 @@ def serve(analysis_loader: Callable[[], Any] | str | os.PathLike, host: str = "1
         pass
     finally:
         shutil.rmtree(work, ignore_errors=True)
+
+
+def _stop_on_terminate() -> None:
+    """Let SIGTERM end the server like Ctrl-C, so the temporary site is removed."""
+    if threading.current_thread() is threading.main_thread():
+        signal.signal(signal.SIGTERM, lambda signum, frame: _interrupt())
+
+
+def _interrupt() -> None:
+    raise KeyboardInterrupt
