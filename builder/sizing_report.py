@@ -90,6 +90,8 @@ def contract(result: CheckResult) -> dict:
             "release_point_pct": _pct(s.release_point),
             "measured_slave_mm": _mm(measured.slave_travel if measured else None),
             "delta_pct": _pct(result.deltas.slave_travel if result.deltas else None),
+            "calibrated_slave_mm": _mm(p.slave_travel if p is not None else None),
+            "calibrated_margin_pct": _pct(p.travel_margin if p is not None else None),
         },
         "pressure_kPa": round(s.pressure / 1000.0, 1),
         "volume": {
@@ -128,6 +130,8 @@ def describe(result: CheckResult, safe: Callable[[str | None], str], primary: st
     gearbox = f"{safe(b.gearbox.family)} {safe(b.gearbox.variant)}".strip()
     lines.append(f"{safe(b.vehicle)} | gearbox {gearbox}, fork tip {b.gearbox.fork_tip_moves}, "
                  f"{b.slave.kind} slave")
+    if b.outcome:
+        lines.append(f"Outcome: {safe(b.outcome)}")
     lines.append("")
     row("Ratios", f"pedal {s.ratio_pedal:.2f} ({s.linkage.mode})   hydraulic "
         f"{s.ratio_hydraulic:.2f}   fork {s.ratio_fork:.2f}   overall {s.ratio_overall:.1f}")
@@ -151,18 +155,21 @@ def describe(result: CheckResult, safe: Callable[[str | None], str], primary: st
         note = p.note if p is not None and p.note else "not enough history"
         row("", f"predicted {show(effort, 'force', primary)} at the shop default efficiency "
             f"{s.efficiency:.0%} ({note})")
-    band = ""
     if b.measured is not None and b.measured.pedal_effort is not None:
         delta = result.deltas.effort if result.deltas else None
-        band = f"measured {show(b.measured.pedal_effort, 'force', primary)}"
+        text = f"measured {show(b.measured.pedal_effort, 'force', primary)}"
         if delta is not None:
-            band += f", {delta:+.1%} against computed"
-        row("", band)
+            text += (f", {delta:+.1%} against {show(s.effort_predicted, 'force', primary)} "
+                     f"at the shop default efficiency {s.efficiency:.0%}")
+        row("", text)
     row("Travel", f"master stroke used {show(s.master_stroke_used, 'length', primary)}, slave "
         f"{show(s.slave_travel, 'length', primary)}"
         + (" (slave stroke reached)" if s.slave_overtravel else ""))
     row("", f"bearing {show(s.bearing_travel, 'length', primary)} against "
         f"{show(s.needed_bearing_travel, 'length', primary)} needed: margin {s.margin:+.0%}")
+    if p is not None and p.slave_travel is not None:
+        row("", f"slave {show(p.slave_travel, 'length', primary)} after the shop's measured "
+            f"travel losses: margin {p.travel_margin:+.0%}")
     release = ("never reached" if s.release_point is None
                else f"{s.release_point:.0%} of pad travel")
     row("", f"full release at {release}")

@@ -107,7 +107,7 @@ def test_effort_band_is_judged_on_the_calibrated_effort():
     import dataclasses
 
     from builder.engine.result import Flag
-    from builder.history.analysis import judged_on_calibrated_effort
+    from builder.history.analysis import judged_on_history
     from builder.history.calibration import Prediction
     from test_engine_factories import make_rules
 
@@ -117,15 +117,15 @@ def test_effort_band_is_judged_on_the_calibrated_effort():
         flags=(Flag("effort-high", "warn", "Predicted pedal effort is above the band."),
                Flag("travel-short", "fail", "Bearing travel is short.")))
     calibrated = Prediction(effort=100.0, interval=None, n_builds=12, basis="family", note=None)
-    judged = judged_on_calibrated_effort(sizing, calibrated, rules)
+    judged = judged_on_history(sizing, calibrated, rules)
     assert [f.code for f in judged.flags] == ["travel-short"]
     assert judged.effort_predicted == 150.0  # computed values are left as the engine gave them
     heavy = Prediction(effort=160.0, interval=None, n_builds=12, basis="family", note=None)
-    flagged = judged_on_calibrated_effort(sizing, heavy, rules)
+    flagged = judged_on_history(sizing, heavy, rules)
     assert [f.code for f in flagged.flags] == ["travel-short", "effort-high"]
     assert flagged.flags[1].message.startswith("Calibrated pedal effort")
     unknown = Prediction(effort=None, interval=None, n_builds=1, basis="", note="not enough")
-    assert judged_on_calibrated_effort(sizing, unknown, rules) is sizing
+    assert judged_on_history(sizing, unknown, rules) is sizing
 
 
 def test_effort_curve_is_sized_on_demand_and_matches_a_full_sizing():
@@ -142,3 +142,24 @@ def test_effort_curve_is_sized_on_demand_and_matches_a_full_sizing():
     full = size_build(build, rules)
     assert analysis.effort_curve("QX-001") == full.effort_curve
     assert full.effort_curve is not None
+
+
+def test_travel_short_is_judged_on_the_smaller_margin_after_measured_losses():
+    # make_sizing: 20 mm computed slave travel, fork 2, 9.5 mm needed -> engine margin +5 %
+    # (a warn against the 10 % minimum). History's travel factor 0.9 -> 18 mm -> 9 mm at the
+    # bearing: 9 / 9.5 - 1 = -5.3 %, so the clutch would not release: the flag must fail.
+    from builder.engine.result import Flag
+    from builder.history.analysis import judged_on_history
+    from builder.history.calibration import Prediction
+    from test_engine_factories import make_rules
+
+    rules = make_rules()
+    sizing = dataclasses.replace(
+        make_sizing("QX-001"), flags=(Flag("travel-short", "warn", "only 5 % over"),))
+    shorter = Prediction(effort=None, interval=None, n_builds=8, basis="family", note=None,
+                         slave_travel=0.018, travel_margin=9.0 / 9.5 - 1.0)
+    judged = judged_on_history(sizing, shorter, rules)
+    assert [(f.code, f.severity) for f in judged.flags] == [("travel-short", "fail")]
+    assert judged.flags[0].message.startswith("After the shop's measured travel losses")
+    longer = dataclasses.replace(shorter, slave_travel=0.021, travel_margin=10.5 / 9.5 - 1.0)
+    assert judged_on_history(sizing, longer, rules) is sizing  # the engine's margin is smaller

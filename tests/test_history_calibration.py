@@ -263,3 +263,13 @@ def test_prior_builds_follow_within_and_between_family_spread():
     assert prior_builds(scattered, members) == PRIOR_BUILDS
     # fewer than three families with two or more builds: no estimate of tau, default prior
     assert prior_builds(tight[:6], {"A": np.arange(0, 3), "B": np.arange(3, 6)}) == PRIOR_BUILDS
+
+
+def test_prediction_carries_the_travel_margin_after_the_shops_travel_losses():
+    # Hand check: travel factor 0.9 on a computed 20 mm slave travel -> 18 mm; fork ratio 2
+    # -> 9 mm at the bearing against 9.5 mm needed -> margin 9 / 9.5 - 1 = -5.26 %.
+    pairs = history({"QX-5": [0.85] * 6}, travel_factors={"QX-5": [0.9] * 6})
+    proposal = make_build("QX-900", family="QX-5", status="draft", measured=False)
+    prediction = calibrate(pairs).predict(proposal, make_sizing("QX-900"))
+    assert prediction.slave_travel == pytest.approx(0.018)
+    assert prediction.travel_margin == pytest.approx(9.0 / 9.5 - 1.0)

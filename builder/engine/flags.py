@@ -53,16 +53,7 @@ def _deg(angle: float) -> str:
 def travel_flags(s: Sizing, rules: ShopRules) -> list[Flag]:
     """travel-short, slave-overtravel, master-bottoms-early, release-late,
     master-volume-short."""
-    flags = []
-    needed = length(s.needed_bearing_travel, rules)
-    if s.margin < 0.0:
-        flags.append(Flag("travel-short", "fail",
-            f"Bearing travel {length(s.bearing_travel, rules)} is short of the {needed}"
-            " needed (clearance plus release travel): the clutch will not fully release."))
-    elif s.margin < rules.min_travel_margin:
-        flags.append(Flag("travel-short", "warn",
-            f"Bearing travel {length(s.bearing_travel, rules)} is only {_pct(s.margin)}"
-            f" over the {needed} needed; the shop asks for {_pct(rules.min_travel_margin)}."))
+    flags = margin_flags(s.bearing_travel, s.needed_bearing_travel, rules, "Bearing travel")
     if s.master_swept_volume < s.needed_volume:
         flags.append(Flag("master-volume-short", "fail",
             f"The master's full stroke sweeps {volume(s.master_swept_volume, rules)} but full"
@@ -82,6 +73,22 @@ def travel_flags(s: Sizing, rules: ShopRules) -> list[Flag]:
             f" ({length(s.pad_travel_to_release or 0.0, rules)}), later than the shop's"
             f" {_pct(rules.latest_release_point)}."))
     return flags
+
+
+def margin_flags(bearing: float, needed: float, rules: ShopRules, which: str) -> list[Flag]:
+    """travel-short for a bearing travel (m) against the travel needed (m);
+    `which` names the estimate, e.g. "Bearing travel"."""
+    margin = bearing / needed - 1.0
+    if margin < 0.0:
+        return [Flag("travel-short", "fail",
+            f"{which} {length(bearing, rules)} is short of the {length(needed, rules)}"
+            " needed (clearance plus release travel): the clutch will not fully release.")]
+    if margin < rules.min_travel_margin:
+        return [Flag("travel-short", "warn",
+            f"{which} {length(bearing, rules)} is only {_pct(margin)} over the"
+            f" {length(needed, rules)} needed; the shop asks for"
+            f" {_pct(rules.min_travel_margin)}.")]
+    return []
 
 
 EFFORT_CODES = ("effort-high", "effort-low")

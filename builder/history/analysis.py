@@ -5,7 +5,7 @@ from collections.abc import Callable, Iterator, Mapping
 from dataclasses import dataclass, field, replace
 
 from builder.engine import GeometryError, size_build
-from builder.engine.flags import EFFORT_CODES, effort_band_flags
+from builder.engine.flags import EFFORT_CODES, effort_band_flags, margin_flags
 from builder.engine.result import Sizing
 from builder.history.calibration import Calibration, Prediction, calibrate
 from builder.history.deltas import Deltas, deltas
@@ -100,7 +100,7 @@ def analyse(shop: Shop, k: int = 5,
     calibration = calibrate(pairs)
     index = SimilarityIndex(pairs, system=shop.rules.display_units)
     predictions = {b.id: calibration.predict(b, s) for b, s in pairs}
-    sizings = {b.id: judged_on_calibrated_effort(s, predictions[b.id], shop.rules)
+    sizings = {b.id: judged_on_history(s, predictions[b.id], shop.rules)
                for b, s in pairs}
     return Analysis(
         shop=shop,
@@ -125,24 +125,31 @@ def analyse_proposal(analysis: Analysis, build: Build, k: int | None = None
     except GeometryError as error:
         raise InputError([_geometry_problem(build, error)]) from None
     prediction = analysis.calibration.predict(build, sizing)
-    sizing = judged_on_calibrated_effort(sizing, prediction, analysis.shop.rules)
+    sizing = judged_on_history(sizing, prediction, analysis.shop.rules)
     similar = analysis.index.query(build, sizing, k=analysis.k if k is None else k,
                                    exclude_id=build.id)
     return sizing, prediction, similar, deltas(build, sizing)
 
 
-def judged_on_calibrated_effort(sizing: Sizing, prediction: Prediction,
-                                rules: ShopRules) -> Sizing:
-    """The sizing with its effort-band flags judged on the calibrated effort, when known.
+def judged_on_history(sizing: Sizing, prediction: Prediction, rules: ShopRules) -> Sizing:
+    """The sizing with its effort and travel flags judged on what the shop's history says.
 
-    The shop's band is about what the driver will feel, so once history calibrates the
-    effort the flag follows that figure; every computed value stays as the engine gave it.
+    The effort band is about what the driver will feel, so once history calibrates the
+    effort the effort flags follow that figure. The shop's measured travel losses can only
+    shorten the travel, so travel-short is judged on the smaller of the two margins. Every
+    computed value stays as the engine gave it.
     """
-    if prediction.effort is None:
-        return sizing
-    kept = tuple(f for f in sizing.flags if f.code not in EFFORT_CODES)
-    return replace(sizing, flags=kept + tuple(effort_band_flags(prediction.effort, rules,
-                                                                "Calibrated")))
+    flags = sizing.flags
+    if prediction.effort is not None:
+        flags = tuple(f for f in flags if f.code not in EFFORT_CODES) + tuple(
+            effort_band_flags(prediction.effort, rules, "Calibrated"))
+    if prediction.travel_margin is not None and prediction.travel_margin < sizing.margin:
+        bearing = prediction.slave_travel / sizing.ratio_fork
+        after_losses = margin_flags(bearing, sizing.needed_bearing_travel, rules,
+                                    "After the shop's measured travel losses, bearing travel")
+        if after_losses:
+            flags = tuple(f for f in flags if f.code != "travel-short") + tuple(after_losses)
+    return sizing if flags == sizing.flags else replace(sizing, flags=flags)
 
 
 def geometry_problems(builds: list[Build], rules: ShopRules) -> list[Problem]:

@@ -109,6 +109,7 @@ class Prediction:
     basis: str  # plain words: which history the estimate and interval come from
     note: str | None  # e.g. "not enough history (2 builds)"
     slave_travel: float | None = None  # m, computed slave travel * calibrated travel factor
+    travel_margin: float | None = None  # fraction, the bearing margin at that slave travel
 
 
 @dataclass(frozen=True, slots=True)
@@ -255,6 +256,7 @@ class Calibration:
             return Prediction(None, None, count, "", note)
         effort = sizing.effort_ideal / estimate.value
         travel = self._travel.estimate(family, exclude_id=build.id).value
+        slave = sizing.slave_travel * travel if travel is not None else None
         interval, interval_words = self._interval(family, build.id, effort)
         full_weight = estimate.weight == 1.0
         return Prediction(
@@ -263,7 +265,9 @@ class Calibration:
             n_builds=estimate.n_family if full_weight else estimate.n_shop,
             basis=f"{_estimate_words(family, estimate)}; {interval_words}",
             note=None if interval else "no interval yet: too few leave-one-out residuals",
-            slave_travel=sizing.slave_travel * travel if travel is not None else None,
+            slave_travel=slave,
+            travel_margin=None if slave is None else
+            slave / sizing.ratio_fork / sizing.needed_bearing_travel - 1.0,
         )
 
     def _interval(self, family: str, build_id: str, effort: float
