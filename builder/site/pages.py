@@ -567,7 +567,12 @@ def prediction_text(data: SiteData, build: Build) -> str:
     text += f" \u2014 from {prediction.n_builds} builds ({md(prediction.basis)})"
     if prediction.note:
         text += f"; {md(prediction.note)}"
-    return text + "."
+    text += "."
+    if prediction.slave_travel is not None:
+        text += (f" After the shop's measured travel losses the slave moves "
+                 f"{data.show.q(prediction.slave_travel, 'length')}, a bearing travel margin of "
+                 f"{prediction.travel_margin:+.1%}.")
+    return text
 
 
 def engineering_table(data: SiteData, build: Build, sizing: Any) -> str:
