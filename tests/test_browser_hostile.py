@@ -19,7 +19,7 @@ from click.testing import CliRunner
 
 from builder.cli import main
 from builder.site.serve import StaticServer
-from test_browser_site import ARGS, CHROMIUM, Watch, search, sync_api
+from test_browser_site import Watch, browser, search  # noqa: F401 (browser: a fixture)
 
 pytestmark = pytest.mark.browser
 
@@ -90,12 +90,6 @@ def served(tmp_path_factory):
         yield server.url
 
 
-@pytest.fixture(scope="module")
-def browser():
-    with sync_api.sync_playwright() as playwright:
-        chromium = playwright.chromium.launch(executable_path=CHROMIUM, args=ARGS)
-        yield chromium
-        chromium.close()
 
 
 @pytest.fixture
