@@ -90,6 +90,19 @@ def test_pushrod_angle_matches_geometry():
             expected, rel=1e-9)
 
 
+def test_largest_pushrod_angle_over_the_used_swing_matches_geometry():
+    # Pushrod on the bore axis at rest: the coupler angle, sin(phi) = (r sin t - e) / l
+    # (Norton, Design of Machinery), grows through this swing, so its largest value over
+    # the used swing is the value where the swing ends, between samples or at the stop.
+    r, l, t0 = 0.05, 0.14, math.radians(75)
+    e = r * math.sin(t0)
+    crank = SliderCrankPedal(norton_layout(r, l, t0, math.radians(30)))
+    for deg in (0.0, 7.3, 12.0, 30.0):
+        stroke = crank.state(math.radians(deg))[0]
+        expected = math.asin(abs(r * math.sin(t0 - math.radians(deg)) - e) / l)
+        assert crank.pushrod_angle_max(stroke) == pytest.approx(expected, rel=1e-9, abs=1e-12)
+
+
 def test_square_pushrod_converges_to_simple_ratio_for_small_swings():
     # With the pushrod square to the pedal arm the slider-crank acts as a lever of ratio
     # pad radius / clevis radius for small swings (Norton, Design of Machinery: crank

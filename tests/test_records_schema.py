@@ -1,8 +1,8 @@
-"""The JSON Schemas in schema/: valid draft 2020-12, documented, and the compiled fast check
-agrees with the reference validator.
+"""The JSON Schemas in schema/: valid draft 2020-12, documented, and the fast path (the compiled
+lighter schema plus the conversion) never accepts what the reference validator refuses.
 
 Outside references: the JSON Schema draft 2020-12 meta-schema (jsonschema's
-Draft202012Validator.check_schema) and jsonschema's verdicts as the reference for fastjsonschema.
+Draft202012Validator.check_schema) and jsonschema's verdicts as the reference for the fast path.
 """
 from __future__ import annotations
 
@@ -13,9 +13,10 @@ import pytest
 import yaml
 from jsonschema import Draft202012Validator
 
-from builder.records import fields
-from builder.records._schema import is_valid_fast, reference_validator, schema
-from builder.records._yaml import Loader
+from builder.records import fields, load_catalogue
+from builder.records._load import _build_converter, _convert_rules, _parts_converter
+from builder.records._schema import fast_schema, is_valid_fast, quantity_patterns, reference_validator, schema
+from builder.records._yaml import Loader, Located, NeedsCare
 
 REPO = Path(__file__).resolve().parents[1]
 NAMES = ("build", "parts", "shop")
@@ -38,6 +39,12 @@ BUILD = {
 }
 
 
+# Strings parse_quantity reads but the schema's quantity patterns refuse (or the reverse), beside
+# plain mistakes: the fast path must still refuse exactly what the reference refuses.
+WRONG = (22, True, None, "22", "abc", ["1 in"], {}, "-3 in", "+3 in", "-0 in", "3\tin", "1/2", "3 in\n",
+         " 0.5", "5 %", "1e1 mm", ". in")
+
+
 def _mutations(document: dict) -> list[dict]:
     """Valid and invalid variants: every key removed, unknown keys, wrong types and forms."""
     variants = [document]
@@ -48,7 +55,7 @@ def _mutations(document: dict) -> list[dict]:
                 changed = copy.deepcopy(document)
                 del changed[key][inner]
                 variants.append(changed)
-                for wrong in (22, True, None, "22", "abc", ["1 in"], {}, "-3 in"):
+                for wrong in WRONG:
                     changed = copy.deepcopy(document)
                     changed[key][inner] = wrong
                     variants.append(changed)
@@ -96,25 +103,86 @@ def test_build_sections_match_the_records_code():
                                *fields.SECTION_FIELDS}
 
 
-def test_fast_and_reference_validators_agree_on_builds():
-    documents = _mutations(BUILD) + _demo_documents("builds")
-    verdicts = set()
+def _deep_mutations(document: dict, paths: list[tuple]) -> list[dict]:
+    """Each WRONG value at each path (keys and list indices) inside `document`."""
+    variants = []
+    for path in paths:
+        for wrong in WRONG:
+            changed = copy.deepcopy(document)
+            inner = changed
+            for step in path[:-1]:
+                inner = inner[step]
+            inner[path[-1]] = wrong
+            variants.append(changed)
+    return variants
+
+
+def _verdicts(name: str, document: dict, convert) -> tuple[object, object]:
+    """(fast path result, reference result) for one document; None where that path refuses it.
+
+    Fast: the compiled lighter schema, then the conversion with no positions (any problem
+    sends the file to the careful path). Reference: jsonschema on the full schema, then the
+    conversion reporting problems.
+    """
+    try:
+        fast = convert(document, fields.Reporter("doc")) if is_valid_fast(name, document) else None
+    except NeedsCare:
+        fast = None
+    reference = None
+    if reference_validator(name).is_valid(document):
+        report = fields.Reporter("doc", Located())
+        result = convert(document, report)
+        reference = None if report.problems else result
+    return fast, reference
+
+
+def _check_verdicts(name: str, documents: list[dict], convert) -> int:
+    """Assert the fast path accepts only what the reference accepts, with the same result;
+    return how many documents the fast path accepted."""
+    accepted = 0
     for document in documents:
-        reference = reference_validator("build").is_valid(document)
-        assert is_valid_fast("build", document) == reference, document
-        verdicts.add(reference)
-    assert verdicts == {True, False}
+        fast, reference = _verdicts(name, document, convert)
+        assert fast is None or fast == reference, (name, document)
+        accepted += fast is not None
+    return accepted
 
 
-def test_fast_and_reference_validators_agree_on_parts_and_shop():
+def test_fast_path_refuses_what_the_reference_refuses_in_builds():
+    catalogue = load_catalogue(REPO / "records")
+    convert = _build_converter(catalogue, None, "doc")
+    demo = _demo_documents("builds")
+    points = [("pedal", "layout", point, axis) for point in ("pivot", "pad", "clevis", "pushrod_seat") for axis in (0, 1)]
+    curve = [("clutch", "load_curve", index, axis) for index in (0, 1) for axis in (0, 1)]
+    documents = _mutations(BUILD) + _deep_mutations(BUILD, points + curve)
+    documents += [{**BUILD, "slave": {**BUILD["slave"], "piston_area": "0.6 in^2"}},  # the schema's `not`
+                  {**BUILD, "slave": {"part": "SC-750", "bore": "0.75 in", "piston_area": "0.6 in^2"}}]
+    assert _check_verdicts("build", demo, convert) == len(demo)  # every demo build takes the fast path
+    accepted = _check_verdicts("build", documents, convert)
+    assert 0 < accepted < len(documents)
+    assert any(_verdicts("build", d, convert) == (None, None) for d in documents)
+
+
+def test_fast_path_refuses_what_the_reference_refuses_in_parts_and_shop():
     part = {"id": "MC-750", "label": "x", "bore": "3/4 in", "stroke": "1.4 in"}
     parts = {"kind": "masters", "parts": [part]}
     shop = {"site_title": "t", "display_units": "metric", "effort_band": {"low": "15 lbf", "high": "40 lbf"},
             "min_travel_margin": "10 %", "latest_release_point": 0.85, "default_efficiency": "85 %",
             "hose_expansion": {"rubber": "0.3 mL/m/MPa", "braided_ptfe": "0.05 mL/m/MPa", "steel": "0 mL/m/MPa"},
             "fluid_bulk_modulus": "1.7 GPa"}
-    cases = [("parts", d) for d in _mutations(parts) + _demo_documents("parts")]
-    cases += [("parts", {"kind": "slaves", "parts": [part]}), ("parts", {"kind": "masters", "parts": [{"id": "x"}]})]
-    cases += [("shop", d) for d in _mutations(shop)]
-    for name, document in cases:
-        assert is_valid_fast(name, document) == reference_validator(name).is_valid(document), (name, document)
+    part_documents = _mutations(parts) + _deep_mutations(parts, [("parts", 0, key) for key in part])
+    part_documents += [{"kind": "slaves", "parts": [part]}, {"kind": "masters", "parts": [{"id": "x"}]}]
+    demo_parts = _demo_documents("parts")
+    for document in part_documents + demo_parts:
+        kind = document.get("kind") if isinstance(document.get("kind"), str) else "masters"
+        _check_verdicts("parts", [document], _parts_converter(Path(f"{kind}.yaml"), {}))
+    assert all(_verdicts("parts", d, _parts_converter(Path(f"{d['kind']}.yaml"), {}))[0] for d in demo_parts)
+    shop_documents = _mutations(shop) + _deep_mutations(shop, [("effort_band", "low"), ("hose_expansion", "steel")])
+    assert 0 < _check_verdicts("shop", shop_documents, _convert_rules) < len(shop_documents)
+
+
+def test_fast_schema_leaves_out_only_what_the_records_code_checks():
+    for name in NAMES:
+        assert quantity_patterns(name) == quantity_patterns("build")  # fields.quantity reads the build's
+        text = repr(fast_schema(name))
+        assert "$ref" not in text and "anyOf" not in text and "'not'" not in text
+        assert not any(repr(pattern) in text for pattern in quantity_patterns(name).values())

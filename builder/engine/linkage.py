@@ -103,6 +103,8 @@ class SliderCrankPedal:
                 " so turning the pedal cannot push the master"
             )
         self.sense = 1.0 if rate_ccw > 0.0 else -1.0
+        self._along0 = self.crank[0] * self.axis[0] + self.crank[1] * self.axis[1]  # k0 . u
+        self._across0 = self.axis[0] * self.crank[1] - self.axis[1] * self.crank[0]  # u x k0
         self.stop_angle = layout.rotation_to_stop
         self.pad_travel_at_stop = arc_length(self.pad_radius, self.stop_angle)
         self._build_table()
@@ -119,30 +121,25 @@ class SliderCrankPedal:
         Seat on the axis at x with |x u - d| = l, d = clevis displacement:
         x = a + sqrt(l^2 - h^2), a = d.u, h = u x d; s = x - l;
         ds/dtheta = a' - h h' / sqrt(l^2 - h^2). Norton, Design of Machinery,
-        slider-crank position and velocity analysis.
+        slider-crank position and velocity analysis. The crank k0 turned by t = sense *
+        theta gives, with a0 = k0.u and b0 = u x k0 (rotation of a vector):
+        a = a0 (cos t - 1) - b0 sin t, h = b0 (cos t - 1) + a0 sin t,
+        a' = -sense (a0 sin t + b0 cos t), h' = sense (a0 cos t - b0 sin t).
         """
-        sense, rod = self.sense, self.rod
-        k0x, k0y = self.crank
-        ux, uy = self.axis
+        sense, rod, a0, b0 = self.sense, self.rod, self._along0, self._across0
         cos, sin, sqrt = math.cos, math.sin, math.sqrt
         found = []
         for theta in thetas:
-            turn = sense * theta
-            cos_t, sin_t = cos(turn), sin(turn)
-            kx = k0x * cos_t - k0y * sin_t
-            ky = k0x * sin_t + k0y * cos_t
-            dx, dy = kx - k0x, ky - k0y
-            along = dx * ux + dy * uy
-            offset = ux * dy - uy * dx
+            cos_t, sin_t = cos(theta), sense * sin(theta)
+            offset = b0 * (cos_t - 1.0) + a0 * sin_t
             room = rod * rod - offset * offset
             if room <= 0.0:
                 found.append(None)
                 continue
             root = sqrt(room)
-            vx, vy = -sense * ky, sense * kx
-            along_rate = vx * ux + vy * uy
-            offset_rate = ux * vy - uy * vx
-            found.append((along + root - rod, along_rate - offset * offset_rate / root, offset))
+            along = a0 * (cos_t - 1.0) - b0 * sin_t
+            rate = -sense * (a0 * sin_t + b0 * cos_t) - offset * sense * (a0 * cos_t - b0 * sin_t) / root
+            found.append((along + root - rod, rate, offset))
         return found
 
     def _pushes(self, theta: float) -> bool:
@@ -163,6 +160,11 @@ class SliderCrankPedal:
         self._thetas = thetas
         self._strokes = [st[0] for st in states]
         self._states = states
+        pad, rod, asin = self.pad_radius, self.rod, math.asin
+        self._sweep = tuple(  # arc_length and pushrod_angle written out: this runs for every sample
+            (pad * t, s, pad / rate, asin(min(1.0, abs(offset) / rod)))
+            for t, (s, rate, offset) in zip(thetas, states)
+        )
 
     def solve(self, stroke: float) -> tuple[float, tuple[float, float, float]]:
         """(crank angle rad, state) where the master has moved `stroke` (m): Newton's
@@ -194,20 +196,16 @@ class SliderCrankPedal:
         return math.asin(min(1.0, abs(offset) / self.rod))
 
     def pushrod_angle_max(self, stroke_used: float) -> float:
-        """Largest pushrod angle to the bore axis over the used swing (rad)."""
+        """Largest pushrod angle to the bore axis over the used swing (rad): the sampled
+        angles up to the used crank angle, and the angle there."""
         theta_used, state_used = self.solve(stroke_used)
-        offsets = [st[2] for t, st in zip(self._thetas, self._states) if t <= theta_used]
-        offsets.append(state_used[2])
-        return self.pushrod_angle(max(offsets, key=abs))
+        sampled = self._sweep[:bisect.bisect_right(self._thetas, theta_used)]
+        return max([row[3] for row in sampled] + [self.pushrod_angle(state_used[2])])
 
     def sweep(self) -> tuple[tuple[float, float, float, float], ...]:
         """(pad travel m, master stroke m, instantaneous ratio, pushrod angle rad) from
-        rest to the stop (or to where the linkage binds)."""
-        pad, rod, asin = self.pad_radius, self.rod, math.asin
-        return tuple(  # arc_length and pushrod_angle written out: this runs for every sample
-            (pad * t, s, pad / rate, asin(min(1.0, abs(offset) / rod)))
-            for t, (s, rate, offset) in zip(self._thetas, self._states)
-        )
+        rest to the stop (or to where the linkage binds), at the sampled crank angles."""
+        return self._sweep
 
     def pose(self, theta: float) -> LinkagePose:
         """Linkage points (m, record frame) with the pedal turned by theta."""

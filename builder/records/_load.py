@@ -200,6 +200,8 @@ def _section(data: dict, name: str, catalogue: dict, report: f.Reporter):
         part = _find_part(catalogue, name, part_id, report, where + ("part",))
         if part is None:
             return None
+        if not values:  # the part alone, no overrides
+            return f.referenced(part)
         values = f.merge(f.section_fields(part.section), values)
     return f.make_section(name, values, report, where, part_id)
 

@@ -1,7 +1,8 @@
 """The JSON Schemas in <repo>/schema: a compiled check for the fast path, plain messages for people.
 
-fastjsonschema compiles each schema once per process for the happy path; jsonschema's
-Draft202012Validator stays the reference verdict and gives the detailed errors.
+fastjsonschema compiles a lighter copy of each schema once per process for the happy path (see
+fast_schema); jsonschema's Draft202012Validator on the full schema stays the reference verdict
+and gives the detailed errors.
 """
 from __future__ import annotations
 
@@ -23,12 +24,43 @@ def schema(name: str) -> dict:
     return json.loads((SCHEMA_DIR / f"{name}.schema.json").read_text(encoding="utf-8"))
 
 
+def quantity_patterns(name: str) -> dict[str, str]:
+    """Quantity definition name (`length`, `signed_length`, `fraction`...) -> its pattern."""
+    defs = schema(name)["$defs"]
+    return {dimension: defs[dimension]["pattern"] for dimension in _QUANTITY_DEFS}
+
+
+@functools.cache
+def fast_schema(name: str) -> dict:
+    """`name` for the compiled fast check: $refs written out (each costs a call there), and
+    without what the records code checks on every path: anyOf / not (section completeness,
+    bore or area) and the quantity patterns (fields.quantity). Anything the lighter check lets
+    through is still caught on the fast path; see tests/test_records_schema.py."""
+    full = schema(name)
+    patterns = set(quantity_patterns(name).values())
+
+    def lighter(node, names: bool = False):
+        if isinstance(node, list):
+            return [lighter(item) for item in node]
+        if not isinstance(node, dict):
+            return node
+        if names:  # a `properties` mapping: its keys are record keys, not keywords
+            return {key: lighter(value) for key, value in node.items()}
+        if "$ref" in node:
+            node = {**full["$defs"][node["$ref"].removeprefix("#/$defs/")],
+                    **{key: value for key, value in node.items() if key != "$ref"}}
+        return {key: lighter(value, key == "properties") for key, value in node.items()
+                if key not in (*_SKIPPED, "$defs") and not (key == "pattern" and value in patterns)}
+
+    return lighter(full)
+
+
 @functools.cache
 def fast_validator(name: str):
-    """A compiled validator for `name`: raises fastjsonschema.JsonSchemaException when invalid."""
+    """The compiled fast_schema(name): raises fastjsonschema.JsonSchemaException when invalid."""
     import fastjsonschema
 
-    return fastjsonschema.compile(schema(name))
+    return fastjsonschema.compile(fast_schema(name))
 
 
 def is_valid_fast(name: str, data: object) -> bool:
@@ -90,7 +122,7 @@ def _explain(name: str, error, where: tuple) -> list[tuple[tuple, bool, str, str
         ]
     dimension = _quantity_dimension(name, sub)
     if dimension is not None and kind in ("type", "pattern"):
-        return [(where, False, dotted(where), _quantity_message(instance, *dimension))]
+        return [(where, False, dotted(where), quantity_message(instance, *dimension))]
     return [(where, False, dotted(where), _message(kind, instance, sub, error))]
 
 
@@ -103,7 +135,7 @@ def _quantity_dimension(name: str, sub: dict) -> tuple[str, bool] | None:
     return None
 
 
-def _quantity_message(value: object, dimension: str, signed: bool) -> str:
+def quantity_message(value: object, dimension: str, signed: bool) -> str:
     try:
         parse_quantity(value, dimension, signed=signed)
     except QuantityError as error:

@@ -21,7 +21,9 @@ Where = tuple  # a location in a document: keys and list indices, e.g. ("pedal",
 
 _BRACKETS = re.compile(r"[\[\]{}]")
 _COMPACT_RUN = re.compile(r"(?:[-?][ \t]+){32}")  # "- - - - ..." nests one level per marker
-_COMPACT_PAIR = re.compile(r"[-?][ \t]+[-?][ \t]")  # cheap test before _COMPACT_RUN
+# Screens every file before _COMPACT_RUN: a run holds a "-" marker pair unless all its markers
+# are "?", and a literal first character makes the search fast.
+_DASH_PAIR = re.compile(r"-[ \t]+[-?][ \t]")
 _TIMESTAMP = "tag:yaml.org,2002:timestamp"
 _MERGE = "tag:yaml.org,2002:merge"
 
@@ -129,7 +131,7 @@ def read_text(path: Path) -> tuple[str | None, tuple[int, int, str] | None]:
 
 
 def _nesting_problem(text: str) -> tuple[int, int, str] | None:
-    if _COMPACT_PAIR.search(text):
+    if "?" in text or _DASH_PAIR.search(text):
         run = _COMPACT_RUN.search(text)
         if run:
             return (*_line_col(text, run.start()), "nesting is too deep")

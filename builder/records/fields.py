@@ -8,11 +8,13 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as _dt
+import functools
 import math
+import re
 
 from builder import model
 from builder.problems import Problem
-from builder.records._schema import dotted
+from builder.records._schema import dotted, quantity_message, quantity_patterns
 from builder.records._yaml import Located, NeedsCare
 from builder.units import QuantityError, check_range, parse_quantity, show
 
@@ -55,7 +57,14 @@ PLAUSIBLE: dict[str, tuple[str, float, float]] = {
     key: (dimension, parse_quantity(low, dimension, signed=True), parse_quantity(high, dimension))
     for key, (dimension, low, high) in _RANGES.items()
 }
-
+# PLAUSIBLE key -> search of the schema pattern a string for that field must match
+_FORMS = {
+    key: re.compile(quantity_patterns("build")["fraction" if dimension == "fraction" else
+                                        f"signed_{dimension}" if low < 0 else dimension]).search
+    for key, (dimension, low, high) in PLAUSIBLE.items()
+}
+_accepted: dict[tuple[str, str], float] = {}  # (text, PLAUSIBLE key) -> SI, bounded memo
+_MAX_ACCEPTED = 16_384
 
 
 class Reporter:
@@ -82,11 +91,11 @@ class Reporter:
 
     def blocked(self, where: tuple) -> bool:
         """A schema problem sits at `where` or above it."""
-        return any(where[: len(bad)] == bad for bad in self.bad)
+        return bool(self.bad) and any(where[: len(bad)] == bad for bad in self.bad)
 
     def clean(self, where: tuple) -> bool:
         """No schema problem at, above or below `where`."""
-        return not any(where[: len(bad)] == bad or bad[: len(where)] == where for bad in self.bad)
+        return not self.bad or not any(where[: len(bad)] == bad or bad[: len(where)] == where for bad in self.bad)
 
 
 TEXT, CHOICE, QUANTITY, CURVE, LAYOUT = "text", "choice", "quantity", "curve", "layout"
@@ -108,6 +117,7 @@ SECTION_CLASS = {
     "slave": model.Slave, "line": model.Line, "pedal": model.Pedal, "measured": model.Measured,
 }
 _CLASS_FIELDS = {name: tuple(f.name for f in dataclasses.fields(cls)) for name, cls in SECTION_CLASS.items()}
+_FIELDS_OF_CLASS = {SECTION_CLASS[name]: names for name, names in _CLASS_FIELDS.items()}
 CATALOGUE_KIND = {"gearbox": "gearboxes", "clutch": "clutches", "master": "masters", "slave": "slaves",
                   "pedal": "pedals"}
 SECTION_OF_KIND = {kind: section for section, kind in CATALOGUE_KIND.items()}
@@ -128,8 +138,20 @@ _LEAST_DISTANCE = 1e-3  # m
 
 
 def quantity(value: object, key: str, report: Reporter, where: tuple) -> float | None:
-    """Convert one quantity for field path `key` (a PLAUSIBLE key); report and return None if bad."""
+    """Convert one quantity for field path `key` (a PLAUSIBLE key); report and return None if bad.
+
+    A string must also match the schema's pattern for the field: the fast path's schema leaves
+    that check here (on the careful path the schema has reported such a value already).
+    """
+    is_text = type(value) is str
+    if is_text:
+        known = _accepted.get((value, key))
+        if known is not None:
+            return known
     dimension, low, high = PLAUSIBLE[key]
+    if is_text and not _FORMS[key](value):
+        report(where, quantity_message(value, dimension, low < 0) + accepted(key))
+        return None
     try:
         result = parse_quantity(value, dimension, signed=low < 0)
         check_range(result, low, high, dimension, value)
@@ -137,6 +159,10 @@ def quantity(value: object, key: str, report: Reporter, where: tuple) -> float |
         message = str(error)
         report(where, message if "plausible range" in message else message + accepted(key))
         return None
+    if is_text:
+        if len(_accepted) >= _MAX_ACCEPTED:
+            _accepted.clear()
+        _accepted[value, key] = result
     return result
 
 
@@ -185,8 +211,9 @@ def date(value: object, report: Reporter, where: tuple) -> _dt.date | None:
 def convert_fields(section: str, raw: dict, report: Reporter, where: tuple) -> dict:
     """The section's given fields in SI (missing ones absent); `part` and unknown keys skipped."""
     fields = {}
+    kinds = SECTION_FIELDS[section]
     for key, value in raw.items():
-        kind = SECTION_FIELDS[section].get(key)
+        kind = kinds.get(key)
         at = where + (key,)
         if kind is None or not report.clean(at):
             continue
@@ -215,10 +242,19 @@ def merge(part_fields: dict, overrides: dict) -> dict:
 def section_fields(section: object) -> dict:
     """The given (not None) fields of a resolved section, without `part`: used for merging."""
     return {
-        f.name: getattr(section, f.name)
-        for f in dataclasses.fields(section)
-        if f.name != "part" and getattr(section, f.name) is not None
+        name: value
+        for name in _FIELDS_OF_CLASS[type(section)]
+        if name != "part" and (value := getattr(section, name)) is not None
     }
+
+
+@functools.lru_cache(maxsize=1024)
+def referenced(part: model.Part):
+    """The section a build gets from `{part: ID}` with no overrides: the part's own, named.
+
+    The same as make_section on the part's fields; made once per part, shared (it is frozen).
+    """
+    return dataclasses.replace(part.section, part=part.id)
 
 
 def make_section(name: str, fields: dict, report: Reporter, where: tuple, part: str | None = None):
@@ -234,7 +270,8 @@ def make_section(name: str, fields: dict, report: Reporter, where: tuple, part: 
     place = " here or in the catalogue part" if part else ""
     for key, alternative in missing.items():
         report(where, f"missing key {key!r}{alternative}{place}", field=dotted(where + (key,)))
-    if missing or any(value is None for key, value in fields.items() if SECTION_FIELDS[name][key] != TEXT):
+    if missing or (None in fields.values()
+                   and any(value is None for key, value in fields.items() if SECTION_FIELDS[name][key] != TEXT)):
         return None
     values = {key: fields.get(key) for key in _CLASS_FIELDS[name]}
     if "part" in values:

@@ -78,7 +78,7 @@ def child_load(records: str) -> dict:
     def ours():
         shop = load_shop(records)
         for build in shop.builds:
-            size_build(build, shop.rules)
+            size_build(build, shop.rules, with_curve=False)  # as analyse() does
         return shop
 
     bare_s, ours_s, ours_cpu, bare_cpu = [], [], [], []
