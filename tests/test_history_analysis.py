@@ -130,7 +130,6 @@ def test_effort_band_is_judged_on_the_calibrated_effort():
 
 def test_effort_curve_is_sized_on_demand_and_matches_a_full_sizing():
     # the whole-shop pass leaves the plotted series out; asking for it gives the engine's own
-    from builder.model import Clutch
     from test_engine_factories import make_rules
 
     rules = make_rules()

@@ -338,7 +338,7 @@ def _escape_shop(shop: Path) -> Path:
     target = sample(shop)
     text = target.read_text()
     for key in ("technician", "vehicle", "outcome"):
-        text = re.sub(rf"^{key}: .*$", lambda _: f"{key}: {json.dumps(key + ESCAPES)}", text, flags=re.M)
+        text = re.sub(rf"^{key}: .*$", lambda _, key=key: f"{key}: {json.dumps(key + ESCAPES)}", text, flags=re.M)
     text = text.replace("family: BQ-4F", f"family: {json.dumps('FX' + ESCAPES)}")
     text = text.replace("  bracket: cast boss, spacer plate", f"  bracket: {json.dumps(ESCAPES)}")
     target.write_text(text)
