@@ -26,12 +26,14 @@ class Context:
         self.records = records
         self._analysis = None
 
-    def analysis(self, progress=None):
+    def analysis(self):
+        """The shop analysed once per command, with progress shown on a terminal."""
         if self._analysis is None:
             from builder.history import analyse
             from builder.records import load_shop
 
-            self._analysis = analyse(load_shop(self.records, progress=progress))
+            shop = load_shop(self.records, progress=progress_reporter("loading"))
+            self._analysis = analyse(shop)
         return self._analysis
 
 
@@ -110,15 +112,14 @@ def check(ctx: Context, file: Path, as_json: bool, k: int) -> None:
     """Size one build or proposal FILE and compare it with the shop's history."""
     from builder import sizing_report
 
-    analysis = _run(lambda: ctx.analysis(progress=progress_reporter("loading")))
+    analysis = _run(ctx.analysis)
     result = _run(lambda: sizing_report.check_file(analysis, file, k))
     if as_json:
         import json
 
         click.echo(json.dumps(sizing_report.contract(result), indent=2, ensure_ascii=True))
     else:
-        echo_safe(sizing_report.describe(result, terminal_safe,
-                                         ctx.analysis().shop.rules.display_units))
+        echo_safe(sizing_report.describe(result, analysis.shop.rules.display_units))
         if any(flag.severity == "fail" for flag in result.sizing.flags):
             click.echo("")
             click.echo(CAUTION)
@@ -132,9 +133,9 @@ def report(ctx: Context, fmt: str) -> None:
     """One row per build: ratios, computed and measured effort, margin, flags."""
     from builder import tables
 
-    analysis = _run(lambda: ctx.analysis(progress=progress_reporter("loading")))
+    analysis = _run(ctx.analysis)
     rows = tables.report_rows(analysis)
-    echo_safe(tables.render(rows, fmt, terminal_safe, tables.REPORT_TABLE_COLUMNS), nl=False)
+    echo_safe(tables.render(rows, fmt, tables.REPORT_TABLE_COLUMNS), nl=False)
 
 
 @main.command()
@@ -143,8 +144,8 @@ def calibration(ctx: Context) -> None:
     """Apparent efficiency and travel loss per gearbox family, with leave-one-out error."""
     from builder import tables
 
-    analysis = _run(lambda: ctx.analysis(progress=progress_reporter("loading")))
-    echo_safe(tables.render(tables.calibration_rows(analysis), "table", terminal_safe), nl=False)
+    analysis = _run(ctx.analysis)
+    echo_safe(tables.render(tables.calibration_rows(analysis), "table"), nl=False)
 
 
 @main.command()
@@ -177,7 +178,7 @@ def site_build(ctx: Context, out: Path) -> None:
     """Build the site from the records; the previous site stays if anything fails."""
     from builder.site import build_site
 
-    analysis = _run(lambda: ctx.analysis(progress=progress_reporter("loading")))
+    analysis = _run(ctx.analysis)
     _run(lambda: build_site(analysis, out, site_src=_site_src(ctx.records),
                             progress=progress_reporter("writing pages")))
     click.echo(f"Site written to {out}")

@@ -3,10 +3,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Callable
 
 from builder.model import Build
 from builder.problems import InputError, Problem
+from builder.tables import scaled
 
 
 @dataclass(frozen=True)
@@ -25,30 +25,20 @@ def check_file(analysis, path: Path, k: int) -> CheckResult:
 
     if not path.is_file():
         raise InputError([Problem(str(path), 0, 0, "file", "no such file")])
-    target = path.resolve()
-    for build in analysis.shop.builds:
-        if Path(build.path).resolve() == target:
-            sizing, prediction, similar, deltas = analyse_proposal(analysis, build, k)
-            return CheckResult(build, sizing, prediction, deltas, similar)
-    build = load_build_file(path, analysis.shop)
+    build = _recorded(analysis.shop.builds, path) or load_build_file(path, analysis.shop)
     sizing, prediction, similar, deltas = analyse_proposal(analysis, build, k)
     return CheckResult(build, sizing, prediction, deltas, similar)
 
 
-def _mm(value: float | None) -> float | None:
-    return None if value is None else round(value * 1000.0, 3)
-
-
-def _ml(value: float | None) -> float | None:
-    return None if value is None else round(value * 1e6, 3)
-
-
-def _pct(fraction: float | None) -> float | None:
-    return None if fraction is None else round(fraction * 100.0, 2)
-
-
-def _n(value: float | None) -> float | None:
-    return None if value is None else round(value, 2)
+def _recorded(builds, path: Path) -> Build | None:
+    """The shop's build loaded from `path`, if it is one (same file name, same real file)."""
+    target = None
+    for build in builds:
+        if Path(build.path).name == path.name:
+            target = target or path.resolve()
+            if Path(build.path).resolve() == target:
+                return build
+    return None
 
 
 def predicted_effort(result: CheckResult) -> float:
@@ -72,34 +62,34 @@ def contract(result: CheckResult) -> dict:
             "overall": round(s.ratio_overall, 4),
         },
         "effort": {
-            "ideal_N": _n(s.effort_ideal),
-            "predicted_N": _n(predicted_effort(result)),
-            "interval_N": None if interval is None else [_n(interval[0]), _n(interval[1])],
-            "measured_N": _n(measured.pedal_effort if measured else None),
-            "delta_pct": _pct(result.deltas.effort if result.deltas else None),
+            "ideal_N": scaled(1.0, 2, s.effort_ideal),
+            "predicted_N": scaled(1.0, 2, predicted_effort(result)),
+            "interval_N": None if interval is None else [scaled(1.0, 2, interval[0]), scaled(1.0, 2, interval[1])],
+            "measured_N": scaled(1.0, 2, measured.pedal_effort if measured else None),
+            "delta_pct": scaled(100.0, 2, result.deltas.effort if result.deltas else None),
             "basis": p.basis if p is not None else None,
             "builds_behind": p.n_builds if p is not None else 0,
             "note": p.note if p is not None else None,
         },
         "travel": {
-            "master_stroke_used_mm": _mm(s.master_stroke_used),
-            "slave_mm": _mm(s.slave_travel),
-            "bearing_mm": _mm(s.bearing_travel),
-            "needed_bearing_mm": _mm(s.needed_bearing_travel),
-            "margin_pct": _pct(s.margin),
-            "release_point_pct": _pct(s.release_point),
-            "measured_slave_mm": _mm(measured.slave_travel if measured else None),
-            "delta_pct": _pct(result.deltas.slave_travel if result.deltas else None),
-            "calibrated_slave_mm": _mm(p.slave_travel if p is not None else None),
-            "calibrated_margin_pct": _pct(p.travel_margin if p is not None else None),
+            "master_stroke_used_mm": scaled(1e3, 3, s.master_stroke_used),
+            "slave_mm": scaled(1e3, 3, s.slave_travel),
+            "bearing_mm": scaled(1e3, 3, s.bearing_travel),
+            "needed_bearing_mm": scaled(1e3, 3, s.needed_bearing_travel),
+            "margin_pct": scaled(100.0, 2, s.margin),
+            "release_point_pct": scaled(100.0, 2, s.release_point),
+            "measured_slave_mm": scaled(1e3, 3, measured.slave_travel if measured else None),
+            "delta_pct": scaled(100.0, 2, result.deltas.slave_travel if result.deltas else None),
+            "calibrated_slave_mm": scaled(1e3, 3, p.slave_travel if p is not None else None),
+            "calibrated_margin_pct": scaled(100.0, 2, p.travel_margin if p is not None else None),
         },
         "pressure_kPa": round(s.pressure / 1000.0, 1),
         "volume": {
-            "master_swept_ml": _ml(s.master_swept_volume),
-            "needed_ml": _ml(s.needed_volume),
-            "losses_ml": _ml(s.losses_volume),
+            "master_swept_ml": scaled(1e6, 3, s.master_swept_volume),
+            "needed_ml": scaled(1e6, 3, s.needed_volume),
+            "losses_ml": scaled(1e6, 3, s.losses_volume),
         },
-        "pedal": {"floor_gap_mm": _mm(s.floor_gap)},
+        "pedal": {"floor_gap_mm": scaled(1e3, 3, s.floor_gap)},
         "flags": [
             {"code": f.code, "severity": f.severity, "message": f.message} for f in s.flags
         ],
@@ -108,7 +98,7 @@ def contract(result: CheckResult) -> dict:
                 "id": item.id,
                 "distance": round(item.distance, 4),
                 "differs": list(item.differs),
-                "measured_effort_N": _n(item.measured_effort),
+                "measured_effort_N": scaled(1.0, 2, item.measured_effort),
                 "outcome": item.outcome,
             }
             for item in result.similar
@@ -116,8 +106,11 @@ def contract(result: CheckResult) -> dict:
     }
 
 
-def describe(result: CheckResult, safe: Callable[[str | None], str], primary: str) -> str:
-    """The technician's view: every figure in both unit systems, flags as sentences."""
+def describe(result: CheckResult, primary: str) -> str:
+    """The technician's view: every figure in both unit systems, flags as sentences.
+
+    Record text is included as it is; the caller makes the whole text terminal-safe.
+    """
     from builder.units import show
 
     s, b, p = result.sizing, result.build, result.prediction
@@ -126,12 +119,12 @@ def describe(result: CheckResult, safe: Callable[[str | None], str], primary: st
     def row(label: str, text: str) -> None:
         lines.append(f"{label:<11} {text}")
 
-    lines.append(f"{safe(b.id)}  [{b.status}]  {safe(b.path)}")
-    gearbox = f"{safe(b.gearbox.family)} {safe(b.gearbox.variant)}".strip()
-    lines.append(f"{safe(b.vehicle)} | gearbox {gearbox}, fork tip {b.gearbox.fork_tip_moves}, "
+    lines.append(f"{b.id}  [{b.status}]  {b.path}")
+    gearbox = f"{b.gearbox.family} {b.gearbox.variant or ''}".strip()
+    lines.append(f"{b.vehicle or ''} | gearbox {gearbox}, fork tip {b.gearbox.fork_tip_moves}, "
                  f"{b.slave.kind} slave")
     if b.outcome:
-        lines.append(f"Outcome: {safe(b.outcome)}")
+        lines.append(f"Outcome: {b.outcome}")
     lines.append("")
     row("Ratios", f"pedal {s.ratio_pedal:.2f} ({s.linkage.mode})   hydraulic "
         f"{s.ratio_hydraulic:.2f}   fork {s.ratio_fork:.2f}   overall {s.ratio_overall:.1f}")
@@ -195,10 +188,10 @@ def describe(result: CheckResult, safe: Callable[[str | None], str], primary: st
         for item in result.similar:
             effort_text = ("no measured effort" if item.measured_effort is None
                            else f"measured {show(item.measured_effort, 'force', primary)}")
-            lines.append(f"  {safe(item.id)}  distance {item.distance:.2f}  [{item.status}]  "
-                         f"{effort_text}; {safe(item.outcome) or 'no outcome noted'}")
+            lines.append(f"  {item.id}  distance {item.distance:.2f}  [{item.status}]  "
+                         f"{effort_text}; {item.outcome or 'no outcome noted'}")
             if item.differs:
-                lines.append(f"      differs: {safe('; '.join(item.differs))}")
+                lines.append(f"      differs: {'; '.join(item.differs)}")
             else:
                 lines.append("      differs: nothing on the compared inputs")
     return "\n".join(lines)

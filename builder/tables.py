@@ -4,22 +4,14 @@ from __future__ import annotations
 import csv
 import io
 import json
-from typing import Callable
 
 # Cells a spreadsheet would read as a formula are prefixed with a quote (OWASP CSV injection).
 _FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 
 
-def _round(value: float | None, digits: int) -> float | None:
-    return None if value is None else round(value, digits)
-
-
-def _mm(value: float | None) -> float | None:
-    return None if value is None else round(value * 1000.0, 2)
-
-
-def _pct(value: float | None) -> float | None:
-    return None if value is None else round(value * 100.0, 1)
+def scaled(factor: float, digits: int, value: float | None) -> float | None:
+    """value * factor rounded to `digits`, or None when unknown (SI to a display unit)."""
+    return None if value is None else round(value * factor, digits)
 
 
 def report_rows(analysis) -> list[dict]:
@@ -37,18 +29,18 @@ def report_rows(analysis) -> list[dict]:
             "status": build.status,
             "family": build.gearbox.family,
             "fork_tip_moves": build.gearbox.fork_tip_moves,
-            "master_bore_mm": _mm(build.master.bore),
-            "slave_bore_mm": _mm(build.slave.bore),
-            "slave_area_mm2": _round(sizing.slave_area * 1e6, 1),
-            "pedal_ratio": _round(sizing.ratio_pedal, 2),
-            "hydraulic_ratio": _round(sizing.ratio_hydraulic, 3),
-            "fork_ratio": _round(sizing.ratio_fork, 3),
-            "overall_ratio": _round(sizing.ratio_overall, 2),
-            "computed_effort_N": _round(sizing.effort_predicted, 1),
-            "calibrated_effort_N": _round(prediction.effort if prediction else None, 1),
-            "measured_effort_N": _round(measured.pedal_effort if measured else None, 1),
-            "effort_delta_pct": _pct(deltas.effort if deltas else None),
-            "travel_margin_pct": _pct(sizing.margin),
+            "master_bore_mm": scaled(1e3, 2, build.master.bore),
+            "slave_bore_mm": scaled(1e3, 2, build.slave.bore),
+            "slave_area_mm2": scaled(1e6, 1, sizing.slave_area),
+            "pedal_ratio": scaled(1.0, 2, sizing.ratio_pedal),
+            "hydraulic_ratio": scaled(1.0, 3, sizing.ratio_hydraulic),
+            "fork_ratio": scaled(1.0, 3, sizing.ratio_fork),
+            "overall_ratio": scaled(1.0, 2, sizing.ratio_overall),
+            "computed_effort_N": scaled(1.0, 1, sizing.effort_predicted),
+            "calibrated_effort_N": scaled(1.0, 1, prediction.effort if prediction else None),
+            "measured_effort_N": scaled(1.0, 1, measured.pedal_effort if measured else None),
+            "effort_delta_pct": scaled(100.0, 1, deltas.effort if deltas else None),
+            "travel_margin_pct": scaled(100.0, 1, sizing.margin),
             "flags": " ".join(f.code for f in sizing.flags),
         })
     return rows
@@ -62,13 +54,13 @@ def calibration_rows(analysis) -> list[dict]:
         {
             "group": name,
             "builds": group.n,
-            "efficiency_pct": _pct(group.efficiency),
-            "efficiency_spread_pct": _pct(group.efficiency_mad),
-            "travel_factor_pct": _pct(group.travel_factor),
-            "travel_spread_pct": _pct(group.travel_factor_mad),
-            "own_weight_pct": _pct(group.weight),
-            "loo_median_err_pct": _pct(group.loo_median_abs_err),
-            "loo_p90_err_pct": _pct(group.loo_p90_abs_err),
+            "efficiency_pct": scaled(100.0, 1, group.efficiency),
+            "efficiency_spread_pct": scaled(100.0, 1, group.efficiency_mad),
+            "travel_factor_pct": scaled(100.0, 1, group.travel_factor),
+            "travel_spread_pct": scaled(100.0, 1, group.travel_factor_mad),
+            "own_weight_pct": scaled(100.0, 1, group.weight),
+            "loo_median_err_pct": scaled(100.0, 1, group.loo_median_abs_err),
+            "loo_p90_err_pct": scaled(100.0, 1, group.loo_p90_abs_err),
         }
         for name, group in groups
     ]
@@ -86,9 +78,10 @@ REPORT_TABLE_COLUMNS = ("id", "date", "status", "family", "fork_tip_moves", "mas
                         "measured_effort_N", "effort_delta_pct", "travel_margin_pct", "flags")
 
 
-def render(rows: list[dict], fmt: str, safe: Callable[[str | None], str],
-           table_columns: tuple[str, ...] | None = None) -> str:
-    """Rows as an aligned text table, CSV (header first) or a JSON array."""
+def render(rows: list[dict], fmt: str, table_columns: tuple[str, ...] | None = None) -> str:
+    """Rows as an aligned text table, CSV (header first) or a JSON array.
+
+    Record text is included as it is; the caller makes the output terminal-safe."""
     if fmt == "json":
         return json.dumps(rows, indent=2, ensure_ascii=True) + "\n"
     if not rows:
@@ -103,7 +96,7 @@ def render(rows: list[dict], fmt: str, safe: Callable[[str | None], str],
         return buffer.getvalue()
     if table_columns:
         headers = [h for h in headers if h in table_columns]
-    cells = [[_text(row[h], safe) for h in headers] for row in rows]
+    cells = [[_text(row[h]) for h in headers] for row in rows]
     widths = [max(len(h), *(len(c[i]) for c in cells)) for i, h in enumerate(headers)]
     out = ["  ".join(h.ljust(w) for h, w in zip(headers, widths))]
     out.append("  ".join("-" * w for w in widths))
@@ -111,9 +104,9 @@ def render(rows: list[dict], fmt: str, safe: Callable[[str | None], str],
     return "\n".join(line.rstrip() for line in out) + "\n"
 
 
-def _text(value, safe: Callable[[str | None], str]) -> str:
+def _text(value) -> str:
     if value is None:
         return "-"
     if isinstance(value, float):
         return f"{value:g}"
-    return safe(str(value)).replace("\n", " ")
+    return str(value).replace("\n", " ")
