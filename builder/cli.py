@@ -165,11 +165,6 @@ def site() -> None:
     """Publish the fitment reference as a static site."""
 
 
-def _site_src(records: Path) -> Path | None:
-    candidate = records.resolve().parent / "site_src"
-    return candidate if candidate.is_dir() else None
-
-
 @site.command("build")
 @click.option("--out", type=click.Path(file_okay=False, path_type=Path), default=Path("site"),
               show_default=True, help="Where the finished site goes (replaced only on success).")
@@ -179,8 +174,7 @@ def site_build(ctx: Context, out: Path) -> None:
     from builder.site import build_site
 
     analysis = _run(ctx.analysis)
-    _run(lambda: build_site(analysis, out, site_src=_site_src(ctx.records),
-                            progress=progress_reporter("writing pages")))
+    _run(lambda: build_site(analysis, out, progress=progress_reporter("writing pages")))
     click.echo(f"Site written to {out}")
 
 
@@ -191,7 +185,7 @@ def site_serve(ctx: Context, port: int) -> None:
     """Build the site and serve it on 127.0.0.1 for a look (Ctrl-C stops)."""
     from builder.site import serve
 
-    _run(lambda: serve(ctx.records, site_src=_site_src(ctx.records), port=port))
+    _run(lambda: serve(ctx.records, port=port))
 
 
 if __name__ == "__main__":
