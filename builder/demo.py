@@ -44,18 +44,21 @@ from __future__ import annotations
 
 import argparse
 import datetime as dt
+import functools
 import math
 import random
 import re
 import sys
 import textwrap
 from dataclasses import dataclass, field
-from fractions import Fraction
 from pathlib import Path
 
 import yaml
 
 from builder import model as m
+from builder.engine import Sizing, size_build
+from builder.records.fields import merge
+from builder.units import INCH, POUND_FORCE, SEEDED_UNITS, parse_quantity
 
 SEED = 7340
 FAMILY_EFFICIENCY = {
@@ -68,14 +71,6 @@ EFFORT_NOISE = 0.02  # standard deviation, fraction
 TRAVEL_NOISE = 0.01  # standard deviation, fraction
 GAP_NOISE = 0.02  # standard deviation, fraction
 
-INCH = 0.0254  # m, exact by definition (NIST SP 811, appendix B)
-POUND_FORCE = 4.4482216152605  # N, exact by definition (NIST SP 811, appendix B)
-UNIT_SI = {
-    "in": INCH, "mm": 1e-3, "lbf": POUND_FORCE, "N": 1.0, "kN": 1e3,
-    "psi": POUND_FORCE / INCH**2, "MPa": 1e6, "GPa": 1e9, "deg": math.pi / 180.0,
-    "in^2": INCH**2, "mm^2": 1e-6, "%": 0.01, "mL/m/MPa": 1e-6 / 1e6,
-}
-SCHEMA = {"shop": "shop.schema.json", "parts": "parts.schema.json", "build": "build.schema.json"}
 
 # What a good build must have shown on the car (the "true" losses applied), and what the
 # rejected ones showed. Common practice, no source.
@@ -95,11 +90,12 @@ class Q:
 
 
 def q(text: str) -> Q:
-    """'7/8 in', '1-1/8 in', '19.05 mm', '-60 mm', '410 lbf', '85 %' -> Q."""
-    magnitude, unit = text.rsplit(" ", 1)
-    whole, _, frac = magnitude.rpartition("-") if "/" in magnitude else ("", "", magnitude)
-    value = Fraction(whole or 0) + Fraction(frac)
-    return Q(text, float(value) * UNIT_SI[unit])
+    """'7/8 in', '1-1/8 in', '19.05 mm', '-60 mm', '410 lbf', '85 %' -> Q.
+
+    The SI value comes from builder.units.parse_quantity, as the records loader reads it.
+    """
+    dimension = SEEDED_UNITS[text.rsplit(" ", 1)[1]][1]
+    return Q(text, parse_quantity(text, dimension, signed=True))
 
 
 def _number(value: float, places: int) -> str:
@@ -371,12 +367,8 @@ class Section:
     comments: dict = field(default_factory=dict)  # key -> trailing comment
 
     def resolved(self) -> dict:
-        base = dict(PARTS[self.part].fields) if self.part else {}
-        if "bore" in self.fields:
-            base.pop("piston_area", None)
-        if "piston_area" in self.fields:
-            base.pop("bore", None)
-        return base | self.fields
+        """The catalogue part's fields, if any, with this section's on top, merged as loaded."""
+        return merge(PARTS[self.part].fields if self.part else {}, self.fields)
 
 
 @dataclass
@@ -468,19 +460,21 @@ def _pedal_layout(rng: random.Random, pedal: dict, system: str, misalign_deg: fl
             "pushrod_seat": point(seat), "rotation_to_stop": q(f"{swing_deg:g} deg")}
 
 
+def _add_layout(rng: random.Random, pedal: Section, system: str, misalign_deg: float) -> None:
+    """Give a pedal section a side-view layout (see _pedal_layout)."""
+    pedal.fields["layout"] = _pedal_layout(rng, pedal.resolved(), system, misalign_deg)
+    pedal.comments["layout"] = "side view at rest, x forward, y up"
+
+
 def _inline_clutch(rng: random.Random, system: str, heavy: bool) -> Section:
     """A clutch the customer supplied, bench-measured, with a load curve half the time."""
     load = rng.uniform(2.9, 3.4) * 1e3 if heavy else rng.uniform(1.35, 2.0) * 1e3
     release = rng.uniform(6.0, 8.0) * 1e-3
     clearance = rng.uniform(1.0, 1.5) * 1e-3
-    if system == "imperial":
-        fields = {"release_load": q(f"{5 * round(load / POUND_FORCE / 5)} lbf"),
-                  "release_travel": length(release, system),
-                  "clearance": length(clearance, system)}
-    else:
-        fields = {"release_load": q(f"{load / 1e3:.2f} kN"),
-                  "release_travel": length(release, system),
-                  "clearance": length(clearance, system)}
+    fields = {"release_load": q(f"{5 * round(load / POUND_FORCE / 5)} lbf" if system == "imperial"
+                                else f"{load / 1e3:.2f} kN"),
+              "release_travel": length(release, system),
+              "clearance": length(clearance, system)}
     if heavy or rng.random() < 0.5:
         peak, c, r = fields["release_load"], fields["clearance"].si, fields["release_travel"].si
         shape = ((0.0, 0.0), (c + 0.3 * r, 0.87), (c + 0.6 * r, 1.0), (c + r, 0.8))
@@ -547,9 +541,10 @@ def _plan(rng: random.Random, ident: str, date: dt.date, status: str, family: Fa
         clutch = _inline_clutch(rng, system, heavy=False)
     else:
         clutch = Section(rng.choice(family.clutches))
-        if "load_curve" not in clutch.resolved() and rng.random() < 0.2:
-            load = clutch.resolved()["release_load"]
-            clutch.fields["release_load"] = _scaled(load, rng.uniform(0.94, 1.06))
+        catalogue = PARTS[clutch.part].fields
+        if "load_curve" not in catalogue and rng.random() < 0.2:
+            clutch.fields["release_load"] = _scaled(catalogue["release_load"],
+                                                    rng.uniform(0.94, 1.06))
             clutch.comments["release_load"] = "this plate, bench-measured on the press"
     fork = None
     if family.forks:
@@ -566,10 +561,7 @@ def _plan(rng: random.Random, ident: str, date: dt.date, status: str, family: Fa
         pedal = (_inline_pedal(rng, system) if by_hand or roll < 0.2
                  else Section(rng.choice(sorted(e.id for e in CATALOGUE["pedals"]))))
         if trouble == "steep pushrod" or rng.random() < 0.3:
-            layout = _pedal_layout(rng, pedal.resolved(), system,
-                                   35.0 if trouble == "steep pushrod" else 0.0)
-            pedal.fields["layout"] = layout
-            pedal.comments["layout"] = "side view at rest, x forward, y up"
+            _add_layout(rng, pedal, system, 35.0 if trouble == "steep pushrod" else 0.0)
     length_in = rng.randrange(24, 61, 2)
     line = Section(None, {
         "length": q(f"{length_in} in") if system == "imperial"
@@ -614,13 +606,13 @@ def _record(plan: Plan, master: Section, slave: Section) -> Record:
                   {k: sections[k] for k in order})
 
 
-def _real(sizing, family: str) -> tuple[float, float]:
+def _real(sizing: Sizing, family: str) -> tuple[float, float]:
     """(real margin, real effort N) under the family's true losses."""
     factor = FAMILY_TRAVEL_FACTOR[family]
     return factor * (1.0 + sizing.margin) - 1.0, sizing.effort_ideal / FAMILY_EFFICIENCY[family]
 
 
-def _fits(plan: Plan, sizing) -> bool:
+def _fits(plan: Plan, sizing: Sizing) -> bool:
     """Whether a sizing behaves the way the plan's record says it did (or will)."""
     fails = any(f.severity == "fail" for f in sizing.flags)
     warns = {f.code for f in sizing.flags}
@@ -640,7 +632,7 @@ def _fits(plan: Plan, sizing) -> bool:
             and "release-late" not in warns)
 
 
-def _choose(plan: Plan, rng: random.Random, rules: m.ShopRules, size_build):
+def _choose(plan: Plan, rng: random.Random, rules: m.ShopRules) -> tuple[Record, Sizing] | None:
     """Try catalogue master/slave pairs in a seeded order; keep the first that fits."""
     kind = "external" if plan.family.forks else "concentric"
     pairs = [(mc, sc) for mc in CATALOGUE["masters"] for sc in CATALOGUE["slaves"]
@@ -675,7 +667,7 @@ def _schedule(rng: random.Random) -> list[tuple[str, dt.date, str, str, str]]:
     return [(f"HW-{101 + n:04d}", *row) for n, row in enumerate(rows)]
 
 
-def _measure(rec: Record, rules: m.ShopRules, size_build) -> dict:
+def _measure(rec: Record, rules: m.ShopRules) -> dict:
     """The measured section: the engine's ideal numbers spoiled by the family's true losses."""
     rng = random.Random(f"{SEED}-{rec.id}")
     build = to_build(rec)
@@ -693,13 +685,13 @@ def _measure(rec: Record, rules: m.ShopRules, size_build) -> dict:
         release = ideal.pad_travel_to_release / factor * release_noise
         if release < build.pedal.pad_travel - ideal.floor_gap:
             measured["pad_travel_to_release"] = length(release, system, 1, 0)
-    measured["floor_gap"] = length(gap, system, 2, 0) if gap else q(
-        "0 in" if system == "imperial" else "0 mm")
+    measured["floor_gap"] = length(gap, system, 2, 0)  # "0 in" / "0 mm" when none
     measured["method"] = method
     return measured
 
 
-def _notes(rec: Record, sizing, trouble: str, rng: random.Random) -> tuple[str | None, str]:
+def _notes(rec: Record, sizing: Sizing, trouble: str,
+           rng: random.Random) -> tuple[str | None, str]:
     """(outcome, notes) in plain words, from what the record shows."""
     measured = rec.measured or {}
     effort = measured.get("pedal_effort")
@@ -740,29 +732,35 @@ def _notes(rec: Record, sizing, trouble: str, rng: random.Random) -> tuple[str |
     return rng.choice(GOOD_OUTCOMES), " ".join(parts)
 
 
-def make_demo() -> tuple[list[Record], list]:
-    """Every demo record (id order) and its sizing at the shop's default efficiency."""
-    from builder.engine import size_build
+def invent(rng: random.Random, rules: m.ShopRules, ident: str, date: dt.date, status: str,
+           family: str, trouble: str, enrich=None) -> tuple[Record, Sizing]:
+    """One build that went as its record says: parts that fit, measured section, notes.
 
+    enrich(plan, rng), when given, may change each plan before its master and slave are chosen.
+    """
+    for _ in range(60):
+        plan = _plan(rng, ident, date, status, FAMILY[family], trouble)
+        if enrich is not None:
+            enrich(plan, rng)
+        chosen = _choose(plan, rng, rules)
+        if chosen:
+            break
+    else:
+        raise RuntimeError(f"{ident}: no catalogue pair fits a {family} '{trouble}' build")
+    rec, sizing = chosen
+    if status != "draft":
+        rec.measured = _measure(rec, rules)
+    rec.outcome, notes = _notes(rec, sizing, trouble, rng)
+    rec.notes = "\n".join(textwrap.wrap(notes, 88)) + "\n"  # as the block scalar reads
+    return rec, sizing
+
+
+def make_demo() -> tuple[list[Record], list[Sizing]]:
+    """Every demo record (id order) and its sizing at the shop's default efficiency."""
     rules = shop_rules()
     rng = random.Random(SEED)
-    records, sizings = [], []
-    for ident, date, status, family, trouble in _schedule(rng):
-        for _ in range(60):
-            plan = _plan(rng, ident, date, status, FAMILY[family], trouble)
-            chosen = _choose(plan, rng, rules, size_build)
-            if chosen:
-                break
-        else:
-            raise RuntimeError(f"{ident}: no catalogue pair fits a {family} '{trouble}' build")
-        rec, sizing = chosen
-        if status != "draft":
-            rec.measured = _measure(rec, rules, size_build)
-        rec.outcome, notes = _notes(rec, sizing, trouble, rng)
-        rec.notes = "\n".join(textwrap.wrap(notes, 88)) + "\n"  # as the block scalar reads
-        records.append(rec)
-        sizings.append(sizing)
-    return records, sizings
+    made = [invent(rng, rules, *row) for row in _schedule(rng)]
+    return [rec for rec, _ in made], [sizing for _, sizing in made]
 
 
 # ----------------------------------------------------------------------------- writing
@@ -774,13 +772,18 @@ def _scalar(value) -> str:
     if isinstance(value, dt.date):
         return value.isoformat()
     text = str(value)
-    try:
-        plain = text == text.strip() and yaml.safe_load(f"k: {text}") == {"k": text}
-    except yaml.YAMLError:
-        plain = False
-    if plain:
+    if _reads_back(text):
         return text
     return '"' + text.replace("\\", "\\\\").replace('"', '\\"') + '"'
+
+
+@functools.lru_cache(maxsize=4096)
+def _reads_back(text: str) -> bool:
+    """Whether `k: text` parses back to the string text (a YAML parse: memoised)."""
+    try:
+        return text == text.strip() and yaml.safe_load(f"k: {text}") == {"k": text}
+    except yaml.YAMLError:
+        return False
 
 
 def _flow(values) -> str:
@@ -810,7 +813,7 @@ def _mapping(fields: dict, comments: dict, indent: int) -> list[str]:
 
 
 def _modeline(schema: str, depth: int) -> str:
-    return f"# yaml-language-server: $schema={'../' * depth}schema/{SCHEMA[schema]}"
+    return f"# yaml-language-server: $schema={'../' * depth}schema/{schema}.schema.json"
 
 
 def shop_text() -> str:
@@ -849,31 +852,47 @@ def build_text(rec: Record) -> str:
     return "\n".join(lines) + "\n"
 
 
+def build_path(rec: Record) -> str:
+    """Where a build's file goes, relative to the records folder."""
+    return f"builds/{rec.date.year}/{rec.id}.yaml"
+
+
+def rules_files() -> dict[str, str]:
+    """Relative path -> text of shop.yaml and the parts catalogue."""
+    return {"shop.yaml": shop_text()} | {
+        f"parts/{kind}.yaml": parts_text(kind) for kind in m.PART_KINDS}
+
+
 def demo_files() -> dict[str, str]:
     """Relative path -> text for every file of the demo shop."""
-    files = {"shop.yaml": shop_text()}
-    files |= {f"parts/{kind}.yaml": parts_text(kind) for kind in m.PART_KINDS}
     records, _ = make_demo()
-    files |= {f"builds/{r.date.year}/{r.id}.yaml": build_text(r) for r in records}
-    return files
+    return rules_files() | {build_path(r): build_text(r) for r in records}
+
+
+def write_files(out_dir: Path, files: dict[str, str]) -> list[Path]:
+    """Write each relative path's text under out_dir, making folders as needed."""
+    written, folders = [], set()
+    for rel, text in files.items():
+        path = out_dir / rel
+        if path.parent not in folders:
+            path.parent.mkdir(parents=True, exist_ok=True)
+            folders.add(path.parent)
+        path.write_text(text, encoding="utf-8", newline="\n")
+        written.append(path)
+    return written
 
 
 def write_demo(out_dir: Path, force: bool = False) -> list[Path]:
     """Write the demo shop under out_dir; refuse to overwrite anything unless force."""
     files = demo_files()
     targets = [out_dir / rel for rel in files]
-    existing = [p for p in targets if p.exists()]
     if force:
-        stale = set((out_dir / "builds").glob("*/HW-*.yaml")) - set(targets)
-        for path in sorted(stale):
+        for path in sorted(set((out_dir / "builds").glob("*/HW-*.yaml")) - set(targets)):
             path.unlink()
-    elif existing:
+    elif existing := [p for p in targets if p.exists()]:
         raise FileExistsError(f"{existing[0]} exists (and {len(existing) - 1} more);"
                               " use --force to regenerate")
-    for path, text in zip(targets, files.values()):
-        path.parent.mkdir(parents=True, exist_ok=True)
-        path.write_text(text, encoding="utf-8", newline="\n")
-    return targets
+    return write_files(out_dir, files)
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -19,11 +19,9 @@ import argparse
 import datetime as dt
 import random
 import sys
-import textwrap
 from pathlib import Path
 
 from builder import demo
-from builder import model as m
 
 DEFAULT_SEED = 20250
 ID_PREFIX = "SY"
@@ -35,7 +33,7 @@ EXTRA_LAYOUT_SHARE = 0.15  # pedals given a side-view layout, on top of the demo
 EXTRA_INLINE_CLUTCH_SHARE = 0.25  # bench-measured clutches with a load curve
 EXTRA_INLINE_CYLINDER_SHARE = 0.2  # master or slave written out by hand
 FAMILY_WEIGHTS = [(f.code, f.builds) for f in demo.FAMILIES]
-TROUBLES = [trouble for _, trouble in demo.REJECTED]
+RULES = demo.shop_rules()
 LOG_STEPS = (
     "Customer brought the car in; pedal box and bell housing inspected.",
     "Measured the fork lengths off the car with the bell housing off.",
@@ -68,7 +66,7 @@ def _slot(rng: random.Random) -> tuple[dt.date, str, str, str]:
     if roll < REJECTED_SHARE:
         family, trouble = demo.REJECTED[rng.randrange(len(demo.REJECTED))]
         return date, "rejected", family, trouble
-    family = rng.choices([code for code, _ in FAMILY_WEIGHTS], [w for _, w in FAMILY_WEIGHTS])[0]
+    family = demo._weighted(rng, FAMILY_WEIGHTS)
     if roll < REJECTED_SHARE + DRAFT_SHARE:
         return date, "draft", family, "steep pushrod" if rng.random() < 0.2 else ""
     return date, "verified" if rng.random() < 0.5 else "measured", family, ""
@@ -82,8 +80,7 @@ def _richer(plan: demo.Plan, rng: random.Random) -> None:
         plan.slave_style = "inline"
     pedal = plan.sections["pedal"]
     if plan.trouble != "bottoms" and "layout" not in pedal.fields and rng.random() < EXTRA_LAYOUT_SHARE:
-        pedal.fields["layout"] = demo._pedal_layout(rng, pedal.resolved(), plan.system, 0.0)
-        pedal.comments["layout"] = "side view at rest, x forward, y up"
+        demo._add_layout(rng, pedal, plan.system, 0.0)
     if not plan.trouble and plan.sections["clutch"].part and rng.random() < EXTRA_INLINE_CLUTCH_SHARE:
         clutch = demo._inline_clutch(rng, plan.system, heavy=False)
         while "load_curve" not in clutch.fields:
@@ -105,29 +102,15 @@ def make_record(seed: int, n: int) -> demo.Record:
     """Build n of the synthetic shop with this seed."""
     rng = random.Random(f"{seed}-{n}")
     date, status, family, trouble = _slot(rng)
-    rules = demo.shop_rules()
-    from builder.engine import size_build
-
-    for _ in range(60):
-        plan = demo._plan(rng, build_id(n), date, status, demo.FAMILY[family], trouble)
-        _richer(plan, rng)
-        chosen = demo._choose(plan, rng, rules, size_build)
-        if chosen:
-            break
-    else:
-        raise RuntimeError(f"{build_id(n)}: no catalogue pair fits a {family} {trouble!r} build")
-    rec, sizing = chosen
-    if status != "draft":
-        rec.measured = demo._measure(rec, rules, size_build)
-    rec.outcome, notes = demo._notes(rec, sizing, trouble, rng)
-    rec.notes = "\n".join(textwrap.wrap(notes, 88)) + "\n" + _work_log(rng, date) + "\n"
+    rec, _ = demo.invent(rng, RULES, build_id(n), date, status, family, trouble, enrich=_richer)
+    rec.notes += _work_log(rng, date) + "\n"
     return rec
 
 
 def record_text(seed: int, n: int) -> tuple[str, str]:
     """(path relative to the records folder, file text) of build n."""
     rec = make_record(seed, n)
-    return f"builds/{rec.date.year}/{rec.id}.yaml", demo.build_text(rec)
+    return demo.build_path(rec), demo.build_text(rec)
 
 
 def write_shop(out_dir: Path, count: int, seed: int = DEFAULT_SEED,
@@ -140,36 +123,17 @@ def write_shop(out_dir: Path, count: int, seed: int = DEFAULT_SEED,
     out_dir = Path(out_dir)
     if out_dir.exists() and any(out_dir.iterdir()):
         raise FileExistsError(f"{out_dir} is not empty")
-    files = {"shop.yaml": demo.shop_text()}
-    files |= {f"parts/{kind}.yaml": demo.parts_text(kind) for kind in m.PART_KINDS}
     if texts is None:
         texts = [record_text(seed, n) for n in range(1, count + 1)]
-    files |= dict(texts[:count])
-    made = set()
-    for relative, text in files.items():
-        path = out_dir / relative
-        if path.parent not in made:
-            path.parent.mkdir(parents=True, exist_ok=True)
-            made.add(path.parent)
-        path.write_text(text, encoding="utf-8", newline="\n")
+    demo.write_files(out_dir, demo.rules_files() | dict(texts[:count]))
     return out_dir
 
 
 def proposal_text(seed: int = DEFAULT_SEED) -> str:
     """A draft proposal (no measured section) for `fitment check`, outside any shop."""
     rng = random.Random(f"{seed}-proposal")
-    rules = demo.shop_rules()
-    from builder.engine import size_build
-
-    for _ in range(60):
-        plan = demo._plan(rng, "PR-0001", dt.date(2026, 2, 2), "draft", demo.FAMILY["QX-5"], "")
-        chosen = demo._choose(plan, rng, rules, size_build)
-        if chosen:
-            rec, sizing = chosen
-            rec.outcome, notes = demo._notes(rec, sizing, "", rng)
-            rec.notes = "\n".join(textwrap.wrap(notes, 88)) + "\n"
-            return demo.build_text(rec)
-    raise RuntimeError("no proposal fits")
+    rec, _ = demo.invent(rng, RULES, "PR-0001", dt.date(2026, 2, 2), "draft", "QX-5", "")
+    return demo.build_text(rec)
 
 
 def main(argv: list[str] | None = None) -> int:
