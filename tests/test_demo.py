@@ -33,17 +33,22 @@ def demo_shop():
     return records, sizings, [demo.to_build(r) for r in records]
 
 
-def _committed_files() -> dict[str, bytes]:
-    paths = [RECORDS / "shop.yaml", *sorted((RECORDS / "parts").glob("*.yaml")),
-             *sorted((RECORDS / "builds").rglob("*.yaml"))]
-    return {p.relative_to(RECORDS).as_posix(): p.read_bytes() for p in paths}
+def _yaml_files(folder: Path = RECORDS) -> dict[str, bytes]:
+    """Relative path -> bytes of every YAML file under folder (the committed demo by default)."""
+    return {p.relative_to(folder).as_posix(): p.read_bytes() for p in sorted(folder.rglob("*.yaml"))}
+
+
+def _schema_path(rel: str, data: bytes) -> Path | None:
+    """The schema a records file's first-line modeline points at; None without a modeline."""
+    first = data.decode().splitlines()[0]
+    target = first.removeprefix("# yaml-language-server: $schema=")
+    return None if target == first else (RECORDS / rel).parent / target
 
 
 def test_generator_reproduces_committed_demo_byte_for_byte(tmp_path):
     demo.write_demo(tmp_path)
-    fresh = {p.relative_to(tmp_path).as_posix(): p.read_bytes()
-             for p in sorted(tmp_path.rglob("*.yaml"))}
-    committed = _committed_files()
+    fresh = _yaml_files(tmp_path)
+    committed = _yaml_files()
     assert sorted(fresh) == sorted(committed)
     changed = [rel for rel in fresh if fresh[rel] != committed[rel]]
     assert not changed, f"regenerate with `python -m builder.demo records/ --force`: {changed[:5]}"
@@ -58,11 +63,10 @@ def test_generator_refuses_to_overwrite_without_force(tmp_path):
 
 
 def test_every_file_starts_with_a_schema_modeline():
-    for rel, data in _committed_files().items():
-        first = data.decode().splitlines()[0]
-        target = first.removeprefix("# yaml-language-server: $schema=")
-        assert target != first, rel
-        assert (RECORDS / rel).parent.joinpath(target).resolve().parent == SCHEMA.resolve(), rel
+    for rel, data in _yaml_files().items():
+        schema_path = _schema_path(rel, data)
+        assert schema_path is not None, rel
+        assert schema_path.resolve().parent == SCHEMA.resolve(), rel
 
 
 def test_demo_counts(demo_shop):
@@ -172,9 +176,8 @@ def test_every_demo_file_validates_against_its_schema():
     """JSON Schema draft 2020-12 (jsonschema.Draft202012Validator), straight from schema/."""
     jsonschema = pytest.importorskip("jsonschema")
     validators = {}
-    for rel, data in _committed_files().items():
-        first = data.decode().splitlines()[0]
-        schema_path = (RECORDS / rel).parent / first.split("$schema=", 1)[1]
+    for rel, data in _yaml_files().items():
+        schema_path = _schema_path(rel, data)
         if schema_path not in validators:
             if not schema_path.exists():
                 pytest.skip(f"{schema_path.name} not written yet")
