@@ -51,6 +51,12 @@ def restore(shop: Path, path: Path) -> None:
     path.write_bytes((ROOT / "records" / path.relative_to(shop)).read_bytes())
 
 
+def as_proposal(build: Path, proposal: Path) -> Path:
+    """Write the sample build's text to `proposal` under an id of its own (PR-0001)."""
+    proposal.write_text(build.read_text().replace("id: HW-0134", "id: PR-0001"))
+    return proposal
+
+
 def assert_problem(result, path: Path | str, field: str, text: str,
                    position: tuple[int, int] | None = None) -> tuple[int, int]:
     """Exit 1, no traceback, and a `path:line:col: field: ...text...` line; returns (line, col)."""
@@ -94,47 +100,25 @@ HOSTILE = [
 ]
 
 
-def _content(case, marker: Path) -> bytes:
-    return case(marker) if callable(case) else case
+# where the hostile file goes (under the folder holding records/) -> the commands that must report it
+PLACES = {
+    "build": (f"records/builds/{SAMPLE}.yaml", (["validate"], ["check", "{target}"])),
+    "proposal": ("proposal.yaml", (["check", "{target}", "--json"], ["validate", "{target}"])),
+    "shop-rules": ("records/shop.yaml", (["validate"], ["report"])),
+    "parts": ("records/parts/masters.yaml", (["validate", "{target}"], ["check", "{sample}"])),
+}
 
 
+@pytest.mark.parametrize("place", PLACES)
 @pytest.mark.parametrize("name, content, field, text, position", HOSTILE, ids=[c[0] for c in HOSTILE])
-def test_hostile_build_in_records(shop, tmp_path, name, content, field, text, position):
+def test_hostile_file(shop, tmp_path, place, name, content, field, text, position):
     marker = tmp_path / "created-by-a-tag"
-    target = sample(shop)
-    target.write_bytes(_content(content, marker))
-    assert_problem(invoke(shop, "validate"), target, field, text, position)
-    assert_problem(invoke(shop, "check", str(target)), target, field, text, position)
-    assert not marker.exists()
-
-
-@pytest.mark.parametrize("name, content, field, text, position", HOSTILE, ids=[c[0] for c in HOSTILE])
-def test_hostile_proposal_outside_records(shop, tmp_path, name, content, field, text, position):
-    marker = tmp_path / "created-by-a-tag"
-    proposal = tmp_path / "proposal.yaml"
-    proposal.write_bytes(_content(content, marker))
-    assert_problem(invoke(shop, "check", str(proposal), "--json"), proposal, field, text, position)
-    assert_problem(invoke(shop, "validate", str(proposal)), proposal, field, text, position)
-    assert not marker.exists()
-
-
-@pytest.mark.parametrize("name, content, field, text, position", HOSTILE, ids=[c[0] for c in HOSTILE])
-def test_hostile_shop_rules(shop, tmp_path, name, content, field, text, position):
-    marker = tmp_path / "created-by-a-tag"
-    target = shop / "shop.yaml"
-    target.write_bytes(_content(content, marker))
-    assert_problem(invoke(shop, "validate"), target, field, text, position)
-    assert_problem(invoke(shop, "report"), target, field, text, position)
-    assert not marker.exists()
-
-
-@pytest.mark.parametrize("name, content, field, text, position", HOSTILE, ids=[c[0] for c in HOSTILE])
-def test_hostile_parts_file(shop, tmp_path, name, content, field, text, position):
-    marker = tmp_path / "created-by-a-tag"
-    target = shop / "parts" / "masters.yaml"
-    target.write_bytes(_content(content, marker))
-    assert_problem(invoke(shop, "validate", str(target)), target, field, text, position)
-    assert_problem(invoke(shop, "check", str(sample(shop))), target, field, text, position)
+    where, commands = PLACES[place]
+    target = shop.parent / where
+    target.write_bytes(content(marker) if callable(content) else content)
+    for args in commands:
+        result = invoke(shop, *[a.format(target=target, sample=sample(shop)) for a in args])
+        assert_problem(result, target, field, text, position)
     assert not marker.exists()
 
 
@@ -169,8 +153,7 @@ def test_id_differs_from_file_name(shop, tmp_path):
 
 
 def test_proposal_outside_records_may_have_any_file_name(shop, tmp_path):
-    proposal = tmp_path / "my proposal.yaml"
-    proposal.write_text(sample(shop).read_text().replace("id: HW-0134", "id: PR-0001"))
+    proposal = as_proposal(sample(shop), tmp_path / "my proposal.yaml")
     assert invoke(shop, "check", str(proposal)).exit_code == 0
 
 
@@ -224,8 +207,7 @@ QUANTITIES = [
 def test_implausible_quantity_names_the_accepted_range(shop, tmp_path, old, new, field, accepted):
     target = _with(sample(shop), old, new)
     assert_problem(invoke(shop, "validate", str(target)), target, field, accepted)
-    proposal = tmp_path / "proposal.yaml"
-    proposal.write_text(target.read_text().replace("id: HW-0134", "id: PR-0001"))
+    proposal = as_proposal(target, tmp_path / "proposal.yaml")
     restore(shop, target)
     assert_problem(invoke(shop, "check", str(proposal)), proposal, field, accepted)
 
@@ -269,8 +251,7 @@ def test_layout_that_cannot_push_the_master(shop, tmp_path):
     for args in (["validate"], ["validate", str(target)], ["check", str(target)], ["report"],
                  ["site", "build", "--out", str(tmp_path / "site")]):
         assert_problem(invoke(shop, *args), target, "pedal.layout", "cannot push the master", (line, 3))
-    proposal = tmp_path / "proposal.yaml"
-    proposal.write_text(target.read_text().replace("id: HW-0134", "id: PR-0001"))
+    proposal = as_proposal(target, tmp_path / "proposal.yaml")
     restore(shop, sample(shop))
     assert_problem(invoke(shop, "check", str(proposal)), proposal, "pedal.layout", "cannot push", (line, 3))
     assert_problem(invoke(shop, "validate", str(proposal)), proposal, "pedal.layout", "cannot push", (line, 3))
@@ -334,7 +315,8 @@ def test_new_never_follows_a_planted_link(shop, tmp_path):
 ESCAPES = "\x1b[31mRED\x1b]0;title\x07\x9b2J\r\x08"  # colour, window title, C1 CSI, CR, BS
 
 
-def _escape_shop(shop: Path) -> Path:
+def _run_on_escapes(shop: Path, args: list[str]):
+    """Plant ESCAPES in the sample build's free text, run `args` ({target}: the build); exit 0."""
     target = sample(shop)
     text = target.read_text()
     for key in ("technician", "vehicle", "outcome"):
@@ -342,16 +324,16 @@ def _escape_shop(shop: Path) -> Path:
     text = text.replace("family: BQ-4F", f"family: {json.dumps('FX' + ESCAPES)}")
     text = text.replace("  bracket: cast boss, spacer plate", f"  bracket: {json.dumps(ESCAPES)}")
     target.write_text(text)
-    return target
+    result = invoke(shop, *[a.format(target=target) for a in args])
+    assert result.exit_code == 0, result.output
+    return result
 
 
 @pytest.mark.parametrize("args", [["check", "{target}"], ["check", "{target}", "--similar", "50"],
                                   ["report"], ["report", "--format", "csv"], ["calibration"]],
                          ids=["check", "check-similar", "report", "report-csv", "calibration"])
 def test_terminal_output_shows_escape_sequences_as_text(shop, args):
-    target = _escape_shop(shop)
-    result = invoke(shop, *[a.format(target=target) for a in args])
-    assert result.exit_code == 0, result.output
+    result = _run_on_escapes(shop, args)
     assert "FX" in result.output
     for control in "\x1b\x07\x9b\x08":
         assert control not in result.output
@@ -362,9 +344,7 @@ def test_terminal_output_shows_escape_sequences_as_text(shop, args):
 
 @pytest.mark.parametrize("args", [["check", "{target}", "--json"], ["report", "--format", "json"]])
 def test_json_output_escapes_control_characters_and_round_trips(shop, args):
-    target = _escape_shop(shop)
-    result = invoke(shop, *[a.format(target=target) for a in args])
-    assert result.exit_code == 0, result.output
+    result = _run_on_escapes(shop, args)
     assert all(ch == "\n" or " " <= ch < "\x7f" for ch in result.output)  # ensure_ascii
     assert "\\u001b[31mRED" in result.output
     assert any("FX" + ESCAPES in text for text in strings(json.loads(result.output)))  # round trip
