@@ -23,20 +23,18 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from builder import sizing_report
-from builder.problems import terminal_safe
 from builder.history import analyse
-from builder.problems import InputError, Problem
 from builder.model import Build
+from builder.problems import InputError, Problem, terminal_safe
 from builder.records import load_build_file, load_catalogue, load_rules, load_shop, validate_paths
 
 ROOT = Path(__file__).resolve().parents[1]
 QUICK = 120
 LONG = int(os.environ.get("FUZZ_EXAMPLES", "10000"))
-DEMO_BUILDS = sorted((ROOT / "records" / "builds").rglob("*.yaml"))
-SEEDS = [DEMO_BUILDS[i] for i in (0, len(DEMO_BUILDS) // 3, len(DEMO_BUILDS) // 2, -1)]
-LAYOUT_SEED = next(p for p in DEMO_BUILDS if "layout:" in p.read_text())
-CONCENTRIC_SEED = next(p for p in DEMO_BUILDS if "concentric" in p.read_text())
-SEED_TEXTS = [p.read_text() for p in [*SEEDS, LAYOUT_SEED, CONCENTRIC_SEED]]
+DEMO_TEXTS = [p.read_text() for p in sorted((ROOT / "records" / "builds").rglob("*.yaml"))]
+SEED_TEXTS = [DEMO_TEXTS[i] for i in (0, len(DEMO_TEXTS) // 3, len(DEMO_TEXTS) // 2, -1)] + [
+    next(text for text in DEMO_TEXTS if "layout:" in text),
+    next(text for text in DEMO_TEXTS if "concentric" in text)]
 SEED_DOCS = [yaml.safe_load(text) for text in SEED_TEXTS]
 SHOP_DOC = yaml.safe_load((ROOT / "records" / "shop.yaml").read_text())
 MASTERS_DOC = yaml.safe_load((ROOT / "records" / "parts" / "masters.yaml").read_text())
@@ -197,83 +195,53 @@ def check_never_raises(env: Env, content: bytes) -> None:
     assert all(ch in "\n\t" or ch >= " " for ch in terminal_safe(text))
 
 
-def rules_never_raise(env: Env, content: bytes) -> None:
-    shop_file = env.records / "shop.yaml"
-    original = shop_file.read_bytes()
-    shop_file.write_bytes(content)
+def load_never_raises(env: Env, relative: str, content: bytes, load, same_file: bool) -> None:
+    """records/<relative> replaced by content, load(records) succeeds or raises InputError with
+    located problems (all in that file when same_file); the file is put back afterwards."""
+    target = env.records / relative
+    original = target.read_bytes()
+    target.write_bytes(content)
     try:
-        load_rules(env.records)
+        load(env.records)
     except InputError as error:
-        assert_located(error.problems, shop_file)
+        assert_located(error.problems, target if same_file else None)
     finally:
-        shop_file.write_bytes(original)
+        target.write_bytes(original)
+
+
+def rules_never_raise(env: Env, content: bytes) -> None:
+    load_never_raises(env, "shop.yaml", content, load_rules, same_file=True)
 
 
 def catalogue_never_raises(env: Env, content: bytes) -> None:
-    masters = env.records / "parts" / "masters.yaml"
-    original = masters.read_bytes()
-    masters.write_bytes(content)
-    try:
-        load_catalogue(env.records)
-    except InputError as error:
-        assert_located(error.problems)
-    finally:
-        masters.write_bytes(original)
+    load_never_raises(env, "parts/masters.yaml", content, load_catalogue, same_file=False)
 
 
-def fuzz(strategy, examples: int):
-    """given(strategy) with `examples` examples, no deadline (CI machines vary)."""
-    def wrap(prop):
-        return settings(max_examples=examples, deadline=None, database=None,
+def fuzz_tests(prop, strategy):
+    """(quick, long) tests of prop(env, content) over strategy: QUICK examples, and LONG examples
+    marked slow. No deadline (CI machines vary), no example database."""
+    def examples(count: int, test):
+        test.__name__ = test.__qualname__ = f"{prop.__name__}_{test.__name__}"
+        return settings(max_examples=count, deadline=None, database=None,
                         suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large,
-                                               HealthCheck.filter_too_much])(given(content=strategy)(prop))
-    return wrap
+                                               HealthCheck.filter_too_much])(given(content=strategy)(test))
+
+    def quick(env, content):
+        prop(env, content)
+
+    def long(env, long_run, content):
+        prop(env, content)
+
+    return examples(QUICK, quick), pytest.mark.slow(examples(LONG, long))
 
 
 SHOP_FILES = st.one_of(mutated([SHOP_DOC]).map(dump), YAML_DOCUMENTS, st.binary(max_size=300))
 PARTS_FILES = st.one_of(mutated([MASTERS_DOC]).map(dump), YAML_DOCUMENTS, st.binary(max_size=300))
-@fuzz(ANY_FILE, QUICK)
-def test_fuzz_validate(env, content):
-    validate_never_raises(env, content)
 
-
-@fuzz(ANY_FILE, QUICK)
-def test_fuzz_check(env, content):
-    check_never_raises(env, content)
-
-
-@fuzz(SHOP_FILES, QUICK)
-def test_fuzz_shop_rules(env, content):
-    rules_never_raise(env, content)
-
-
-@fuzz(PARTS_FILES, QUICK)
-def test_fuzz_catalogue(env, content):
-    catalogue_never_raises(env, content)
-
-
-@pytest.mark.slow
-@fuzz(ANY_FILE, LONG)
-def test_fuzz_validate_long(env, long_run, content):
-    validate_never_raises(env, content)
-
-
-@pytest.mark.slow
-@fuzz(ANY_FILE, LONG)
-def test_fuzz_check_long(env, long_run, content):
-    check_never_raises(env, content)
-
-
-@pytest.mark.slow
-@fuzz(SHOP_FILES, LONG)
-def test_fuzz_shop_rules_long(env, long_run, content):
-    rules_never_raise(env, content)
-
-
-@pytest.mark.slow
-@fuzz(PARTS_FILES, LONG)
-def test_fuzz_catalogue_long(env, long_run, content):
-    catalogue_never_raises(env, content)
+test_fuzz_validate, test_fuzz_validate_long = fuzz_tests(validate_never_raises, ANY_FILE)
+test_fuzz_check, test_fuzz_check_long = fuzz_tests(check_never_raises, ANY_FILE)
+test_fuzz_shop_rules, test_fuzz_shop_rules_long = fuzz_tests(rules_never_raise, SHOP_FILES)
+test_fuzz_catalogue, test_fuzz_catalogue_long = fuzz_tests(catalogue_never_raises, PARTS_FILES)
 
 
 def test_mutations_reach_the_engine(env):
