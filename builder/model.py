@@ -22,7 +22,11 @@ PART_KINDS = ("gearboxes", "clutches", "masters", "slaves", "pedals")
 
 
 def circle_area(bore: float) -> float:
-    """Area of a circular piston, A = pi * D^2 / 4 (m^2 from m)."""
+    """Area of a circular piston, A = pi * D^2 / 4.
+
+    bore D in m; returns m^2. Source: area of a circle, as used in OpenStax College
+    Physics, "Pascal's Principle" (hydraulic piston areas).
+    """
     return math.pi * bore * bore / 4.0
 
 

@@ -3,35 +3,27 @@ from __future__ import annotations
 
 import math
 
-import pint
 import pytest
 
-from builder.engine.hydraulics import (
-    hydraulic_ratio, line_compliance, line_pressure, line_volume, losses_volume,
-    piston_area, swept_volume,
-)
 from builder.engine import size_build
-from test_engine_factories import INCH, make_build, make_rules
-
-ureg = pint.UnitRegistry()
-
-
-def si(text: str) -> float:
-    """A quantity in base SI units, converted by pint (reference library for units)."""
-    return ureg.Quantity(text).to_base_units().magnitude
+from builder.engine.hydraulics import (
+    hydraulic_ratio, line_compliance, line_pressure, line_volume, losses_volume, swept_volume,
+)
+from builder.model import circle_area
+from test_engine_factories import INCH, make_build, make_rules, si
 
 
 def test_piston_area_of_one_inch_bore():
     # A = pi D^2 / 4 (OpenStax College Physics, "Pascal's Principle"); 1 in -> 0.785398 in^2,
     # unit conversion by pint.
-    assert piston_area(si("1 inch")) == pytest.approx(si("0.7853981634 inch**2"), rel=1e-9)
+    assert circle_area(si("1 inch")) == pytest.approx(si("0.7853981634 inch**2"), rel=1e-9)
 
 
 def test_pascal_puts_on_the_brakes_example():
     # OpenStax College Physics, "Pascal's Principle", example "Calculating Force of Slave
     # Cylinders: Pascal Puts on the Brakes": 500 N on a 0.500 cm master, 2.50 cm slave
     # -> 1.25e4 N at the slave (from memory).
-    ratio = hydraulic_ratio(piston_area(0.025), piston_area(0.005))
+    ratio = hydraulic_ratio(circle_area(0.025), circle_area(0.005))
     assert 500.0 * ratio == pytest.approx(1.25e4, rel=1e-9)
 
 
@@ -61,7 +53,7 @@ def test_line_pressure_is_force_over_area():
 
 def test_swept_and_line_volumes():
     # V = A s and V = pi d^2/4 L (volume of a cylinder); 3/4 in x 1 in -> 0.441786 in^3 (pint).
-    assert swept_volume(piston_area(0.75 * INCH), INCH) == pytest.approx(
+    assert swept_volume(circle_area(0.75 * INCH), INCH) == pytest.approx(
         si("0.4417864669 inch**3"), rel=1e-9)
     assert line_volume(0.0032, 1.0) == pytest.approx(math.pi * 0.0016**2, rel=1e-12)
 

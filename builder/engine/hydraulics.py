@@ -1,19 +1,11 @@
-"""Hydraulic relations between master and slave: areas, ratio, pressure, volumes, losses.
+"""Hydraulic relations between master and slave: ratio, pressure, volumes, losses.
 
-All arguments and results are SI floats (m, m^2, m^3, N, Pa).
+All arguments and results are SI floats (m, m^2, m^3, N, Pa). Piston areas come from
+builder.model (circle_area, Master.area, Slave.area).
 """
 from __future__ import annotations
 
-import math
-
-
-def piston_area(bore: float) -> float:
-    """Area of a round piston, A = pi * D^2 / 4.
-
-    bore D in m; returns m^2. Source: area of a circle, as used in OpenStax College
-    Physics, "Pascal's Principle" (hydraulic piston areas).
-    """
-    return math.pi * bore * bore / 4.0
+from builder.model import circle_area
 
 
 def hydraulic_ratio(slave_area: float, master_area: float) -> float:
@@ -52,7 +44,7 @@ def line_volume(line_bore: float, length: float) -> float:
     line_bore d in m, length L in m; returns m^3. Source: volume of a cylinder
     (OpenStax College Physics, "Pascal's Principle" areas times length).
     """
-    return piston_area(line_bore) * length
+    return circle_area(line_bore) * length
 
 
 def line_compliance(

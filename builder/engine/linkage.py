@@ -42,14 +42,13 @@ class LeverPedal:
     """Simple mode: constant ratio pivot-to-pad / pivot-to-clevis (Shigley, levers)."""
 
     mode = "simple"
+    binds = False  # a lever has no over-centre point
     __slots__ = ("ratio", "pad_travel_at_stop", "stroke_at_stop")
 
     def __init__(self, pivot_to_pad: float, pivot_to_clevis: float, pad_travel: float):
         self.ratio = lever_ratio(pivot_to_pad, pivot_to_clevis)
         self.pad_travel_at_stop = pad_travel
         self.stroke_at_stop = pad_travel / self.ratio
-
-    binds = False  # a lever has no over-centre point
 
     def at_stroke(self, stroke: float) -> tuple[float, float]:
         """(pad travel x_pad = R_p * s in m, ratio R_p) at master stroke s (m);
@@ -88,23 +87,23 @@ class SliderCrankPedal:
         cx, cy = layout.clevis
         sx, sy = layout.pushrod_seat
         self.rod = math.hypot(sx - cx, sy - cy)
-        self.crank = (cx - px, cy - py)
+        crank = (cx - px, cy - py)
         self.pad_radius = math.hypot(layout.pad[0] - px, layout.pad[1] - py)
-        crank_radius = math.hypot(*self.crank)
+        crank_radius = math.hypot(*crank)
         if self.rod <= 0.0 or crank_radius <= 0.0 or self.pad_radius <= 0.0:
             raise GeometryError(
                 "pivot, clevis, pad and pushrod seat must be distinct points"
             )
         self.axis = ((sx - cx) / self.rod, (sy - cy) / self.rod)
-        rate_ccw = -self.crank[1] * self.axis[0] + self.crank[0] * self.axis[1]
+        rate_ccw = -crank[1] * self.axis[0] + crank[0] * self.axis[1]
         if abs(rate_ccw) < 1e-6 * crank_radius:
             raise GeometryError(
                 "the pushrod lies along the line from pivot to clevis at rest,"
                 " so turning the pedal cannot push the master"
             )
         self.sense = 1.0 if rate_ccw > 0.0 else -1.0
-        self._along0 = self.crank[0] * self.axis[0] + self.crank[1] * self.axis[1]  # k0 . u
-        self._across0 = self.axis[0] * self.crank[1] - self.axis[1] * self.crank[0]  # u x k0
+        self._along0 = crank[0] * self.axis[0] + crank[1] * self.axis[1]  # k0 . u
+        self._across0 = self.axis[0] * crank[1] - self.axis[1] * crank[0]  # u x k0
         self.stop_angle = layout.rotation_to_stop
         self.pad_travel_at_stop = arc_length(self.pad_radius, self.stop_angle)
         self._build_table()

@@ -10,7 +10,6 @@ from builder.engine.hydraulics import (
     line_pressure,
     line_volume,
     losses_volume,
-    piston_area,
     swept_volume,
 )
 from builder.engine.linkage import GeometryError, LeverPedal, SliderCrankPedal
@@ -49,8 +48,7 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
     clutch, master, slave, line = build.clutch, build.master, build.slave, build.line
     pedal = pedal_linkage(build.pedal)
 
-    master_area = piston_area(master.bore)
-    slave_area = slave.piston_area if slave.piston_area is not None else piston_area(slave.bore)
+    master_area, slave_area = master.area, slave.area
     r_h = hydraulic_ratio(slave_area, master_area)
     r_f = fork_ratio(build.fork)
     pressure = line_pressure(clutch.release_load, r_f, slave_area)
@@ -68,7 +66,7 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
 
     bottoms_early = pedal.stroke_at_stop > master.stroke
     stroke_used = master.stroke if bottoms_early else pedal.stroke_at_stop
-    pad_used, ratio_end = pedal.at_stroke(stroke_used)
+    pad_used, _ = pedal.at_stroke(stroke_used)
     _, ratio_rest = pedal.at_stroke(0.0)
     r_p = pad_used / stroke_used if stroke_used > 0.0 else ratio_rest
 
