@@ -9,10 +9,10 @@ import math
 
 from builder.engine.linkage import LeverPedal, SliderCrankPedal
 from builder.engine.result import Flag, Sizing
+from builder.engine.travel import travel_margin
 from builder.model import Build, ShopRules
+from builder.units import INCH, POUND_FORCE  # builder.units loads pint only on demand
 
-INCH = 0.0254  # m, exact by definition (NIST SP 811)
-POUND_FORCE = 4.4482216152605  # N, exact by definition
 PSI = POUND_FORCE / INCH**2  # Pa
 CUBIC_INCH = INCH**3  # m^3
 PAD_TRAVEL_TOLERANCE = 0.05  # layout swing vs recorded pad travel (common practice)
@@ -78,7 +78,7 @@ def travel_flags(s: Sizing, rules: ShopRules) -> list[Flag]:
 def margin_flags(bearing: float, needed: float, rules: ShopRules, which: str) -> list[Flag]:
     """travel-short for a bearing travel (m) against the travel needed (m);
     `which` names the estimate, e.g. "Bearing travel"."""
-    margin = bearing / needed - 1.0
+    margin = travel_margin(bearing, needed)
     if margin < 0.0:
         return [Flag("travel-short", "fail",
             f"{which} {length(bearing, rules)} is short of the {length(needed, rules)}"
