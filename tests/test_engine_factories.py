@@ -1,4 +1,5 @@
-"""Invented builds and shop rules for the engine tests (no tests here, only makers).
+"""Invented builds and shop rules for the engine tests (no tests here, only makers),
+and the one pint registry they share.
 
 All values are invented; SI units as builder.model requires.
 """
@@ -7,6 +8,8 @@ from __future__ import annotations
 import dataclasses
 import math
 
+import pint
+
 from builder.model import (
     Build, Clutch, Fork, Gearbox, Line, Master, Pedal, PedalLayout, ShopRules, Slave,
 )
@@ -14,6 +17,12 @@ from builder.model import (
 INCH = 0.0254  # m, exact by definition (NIST SP 811, appendix B)
 POUND_FORCE = 4.4482216152605  # N, exact by definition (NIST SP 811, appendix B)
 PSI = POUND_FORCE / INCH**2  # Pa
+UREG = pint.UnitRegistry()  # reference library for units; one registry, built once
+
+
+def si(text: str) -> float:
+    """A quantity in base SI units, converted by pint."""
+    return UREG.Quantity(text).to_base_units().magnitude
 
 
 def make_rules(**changes) -> ShopRules:

@@ -6,8 +6,11 @@ import math
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from builder.engine import size_build
-from test_engine_factories import INCH, POUND_FORCE, PSI, make_build, make_rules, square_layout
+from builder.engine import flags, size_build
+from builder.engine.effort import load_at
+from test_engine_factories import (
+    INCH, POUND_FORCE, PSI, UREG, make_build, make_rules, square_layout,
+)
 
 LOSSLESS = make_rules(lossless=True)
 
@@ -97,7 +100,6 @@ def _trapezoid(points):
 
 def _bearing_work(curve, clearance, reached):
     """Integral of bearing load over bearing travel, load 0 before the clearance."""
-    from builder.engine.effort import load_at
     xs = sorted({0.0, clearance, reached, *(x for x, _ in curve if x < reached)})
     xs = [x for x in xs if x <= reached]
     points = []
@@ -226,17 +228,14 @@ def test_metric_shop_shows_metric_first():
 
 def test_flag_numbers_agree_with_pint():
     # Both unit systems in messages; conversions checked against pint (reference library).
-    import pint
-    from builder.engine import flags
-    ureg = pint.UnitRegistry()
     rules = make_rules()
-    kpa = ureg.Quantity(1000, "psi").to("kPa").magnitude
-    assert flags.pressure(ureg.Quantity(1000, "psi").to("Pa").magnitude, rules) == \
+    kpa = UREG.Quantity(1000, "psi").to("kPa").magnitude
+    assert flags.pressure(UREG.Quantity(1000, "psi").to("Pa").magnitude, rules) == \
         f"1000 psi ({kpa:.0f} kPa)"
-    newton = ureg.Quantity(30, "lbf").to("N").magnitude
+    newton = UREG.Quantity(30, "lbf").to("N").magnitude
     assert flags.force(newton, rules) == f"30 lbf ({newton:.0f} N)"
-    assert flags.length(ureg.Quantity(7, "mm").to("m").magnitude, rules) == "0.28 in (7.0 mm)"
-    ml = ureg.Quantity(1, "in**3").to("mL").magnitude
+    assert flags.length(UREG.Quantity(7, "mm").to("m").magnitude, rules) == "0.28 in (7.0 mm)"
+    ml = UREG.Quantity(1, "in**3").to("mL").magnitude
     assert flags.volume(ml * 1e-6, rules) == f"1.000 in^3 ({ml:.2f} mL)"
 
 
