@@ -78,7 +78,7 @@ class Display:
     """Quantities in both unit systems, the shop's primary first; Markdown-escaped."""
 
     def __init__(self, rules: ShopRules):
-        self.primary = rules.display_units if rules.display_units in units.SYSTEMS else "imperial"
+        self.primary = rules.display_units  # "imperial" | "metric" (the shop schema's enum)
         self.chart = CHART_UNITS[self.primary]
         self._per_unit = {dim: units.parse_quantity(f"1 {name}", dim)
                           for dim, name in self.chart.items()}
@@ -116,13 +116,6 @@ def table(header: Sequence[str], rows: Sequence[Sequence[str]]) -> str:
     lines = ["| " + " | ".join(header) + " |", "|" + "---|" * len(header)]
     lines += ["| " + " | ".join(cell or NONE for cell in row) + " |" for row in rows]
     return "\n".join(lines)
-
-
-def similar_of(analysis: Any, build_id: str) -> list:
-    similar = getattr(analysis, "similar", None)
-    if callable(similar):
-        return list(similar(build_id))
-    return list((similar or {}).get(build_id, ()))
 
 
 def parts_of(build: Build) -> list[tuple[str, str]]:
@@ -175,12 +168,12 @@ def section_rows(section: Any, show: Display) -> list[list[str]]:
 
 @dataclass
 class SiteData:
-    """The Analysis with the look-ups every page needs, computed once."""
+    """The Analysis with the look-ups every page needs, computed once. Every build has a
+    sizing, deltas and a prediction: analyse() refuses a shop with a build it cannot size."""
 
     analysis: Any
     show: Display
     builds: list[Build]
-    by_id: dict[str, Build]
     used_by: dict[tuple[str, str], list[Build]]
 
     @classmethod
@@ -190,21 +183,20 @@ class SiteData:
         for build in builds:
             for key in parts_of(build):
                 used_by[key].append(build)
-        return cls(analysis, Display(analysis.shop.rules), builds, {b.id: b for b in builds},
-                   used_by)
+        return cls(analysis, Display(analysis.shop.rules), builds, used_by)
 
     @property
     def rules(self) -> ShopRules:
         return self.analysis.shop.rules
 
     def sizing(self, build_id: str):
-        return self.analysis.sizings.get(build_id)
+        return self.analysis.sizings[build_id]
 
     def deltas(self, build_id: str):
-        return self.analysis.deltas.get(build_id)
+        return self.analysis.deltas[build_id]
 
     def prediction(self, build_id: str):
-        return self.analysis.predictions.get(build_id)
+        return self.analysis.predictions[build_id]
 
 
 def generated_pages(analysis: Any, progress: Callable[[int, int], None] | None = None
@@ -263,10 +255,11 @@ def home_page(data: SiteData) -> str:
 def effort_scatter(data: SiteData) -> str:
     by_status: dict[str, list[tuple[float, float]]] = defaultdict(list)
     for b in data.builds:
-        sizing, effort = data.sizing(b.id), measured_effort(b)
-        if sizing is None or effort is None:
+        effort = measured_effort(b)
+        if effort is None:
             continue
-        by_status[b.status].append((data.show.chart_value(sizing.effort_predicted, "force"),
+        predicted = data.sizing(b.id).effort_predicted
+        by_status[b.status].append((data.show.chart_value(predicted, "force"),
                                     data.show.chart_value(effort, "force")))
     series = [svg.Series(f"{status} ({len(points)})", points, STATUS_COLORS.get(status, "#555"))
               for status, points in sorted(by_status.items())]
@@ -276,7 +269,7 @@ def effort_scatter(data: SiteData) -> str:
     return chart.render()
 
 
-def combination_key(build: Build, show: Display, pedal_ratio: float | None) -> tuple[str, str, str]:
+def combination_key(build: Build, show: Display, pedal_ratio: float) -> tuple[str, str, str]:
     """Master / slave / pedal as the reference shows them: part id, or the inline size."""
     master = build.master.part or f"{units.show(build.master.bore, 'length', show.primary)} bore"
     if build.slave.part:
@@ -285,7 +278,7 @@ def combination_key(build: Build, show: Display, pedal_ratio: float | None) -> t
         slave = f"{units.show(build.slave.bore, 'length', show.primary)} bore"
     else:
         slave = f"{units.show(build.slave.area, 'area', show.primary)} piston"
-    pedal = build.pedal.part or (f"inline, {pedal_ratio:.1f} : 1" if pedal_ratio else "inline")
+    pedal = build.pedal.part or f"inline, {pedal_ratio:.1f} : 1"
     return master, slave, pedal
 
 
@@ -299,8 +292,7 @@ def reference_page(data: SiteData) -> str:
         lambda: defaultdict(list))
     for b in data.builds:
         if b.status in ("verified", "rejected"):
-            sizing = data.sizing(b.id)
-            key = combination_key(b, data.show, sizing.ratio_pedal if sizing else None)
+            key = combination_key(b, data.show, data.sizing(b.id).ratio_pedal)
             groups[(b.gearbox.family, b.gearbox.fork_tip_moves)][key].append(b)
     out = [heading("Fitment reference"),
            "Master, slave and pedal combinations this shop has finished, by gearbox family and "
@@ -321,7 +313,7 @@ def reference_page(data: SiteData) -> str:
         for key, members in sorted(groups[(family, direction)].items()):
             first = members[0]
             efforts = [e for e in map(measured_effort, members) if e is not None]
-            margins = [s.margin for s in map(data.sizing, (m.id for m in members)) if s is not None]
+            least_margin = min(data.sizing(m.id).margin for m in members)
             failed = sum(m.status == "rejected" for m in members)
             ok = len(members) - failed
             if failed and ok:
@@ -333,7 +325,7 @@ def reference_page(data: SiteData) -> str:
             rows.append([result, _combo_cell("masters", first, key[0]),
                          _combo_cell("slaves", first, key[1]), _combo_cell("pedals", first, key[2]),
                          data.show.q(statistics.median(efforts) if efforts else None, "force"),
-                         pct(min(margins) if margins else None, signed=True),
+                         pct(least_margin, signed=True),
                          ", ".join(build_link(m.id, "") for m in members)])
         out.append(table(["Result", "Master", "Slave", "Pedal", "Measured effort (median)",
                           "Travel margin (least)", "Builds"], rows))
@@ -343,12 +335,11 @@ def reference_page(data: SiteData) -> str:
 def builds_index(data: SiteData) -> str:
     rows = []
     for b in data.builds:
-        sizing = data.sizing(b.id)
         rows.append([build_link(b.id, "builds"), md(b.date.isoformat() if b.date else NONE),
                      md(b.status), md(b.gearbox.family), md(b.vehicle),
                      data.show.q(b.master.bore, "length"),
                      data.show.q(b.slave.bore, "length") if b.slave.bore else data.show.q(b.slave.area, "area"),
-                     data.show.q(sizing.effort_predicted if sizing else None, "force"),
+                     data.show.q(data.sizing(b.id).effort_predicted, "force"),
                      data.show.q(measured_effort(b), "force"), md(b.outcome)])
     return "\n\n".join([
         heading("Builds"),
@@ -380,11 +371,10 @@ def part_page(data: SiteData, part: Part) -> str:
     users = data.used_by.get((part.kind, part.id), [])
     rows = []
     for b in users:
-        sizing, deltas = data.sizing(b.id), data.deltas(b.id)
         rows.append([build_link(b.id, "part"), md(b.status), md(b.gearbox.family),
                      data.show.q(measured_effort(b), "force"),
-                     pct(deltas.effort if deltas else None, signed=True),
-                     pct(sizing.margin if sizing else None, signed=True), md(b.outcome)])
+                     pct(data.deltas(b.id).effort, signed=True),
+                     pct(data.sizing(b.id).margin, signed=True), md(b.outcome)])
     out = [heading(f"{title} {part.id}")]
     if part.label:
         out.append(md(part.label))
@@ -402,11 +392,11 @@ def calibration_page(data: SiteData) -> str:
     cal = data.analysis.calibration
     groups = [cal.shop] + [cal.families[name] for name in sorted(cal.families)]
     effort_rows = [[md(g.name), str(g.n), pct(g.efficiency),
-                    _spread(_get(g, "efficiency_median"), g.efficiency_mad), f"{g.weight:.2f}",
+                    _spread(g.efficiency_median, g.efficiency_mad), f"{g.weight:.2f}",
                     pct(g.loo_median_abs_err), pct(g.loo_p90_abs_err)] for g in groups]
     travel_rows = [[md(g.name), str(g.n_travel),
                     NONE if g.travel_factor is None else f"{g.travel_factor:.3f}",
-                    _spread(_get(g, "travel_factor_median"), g.travel_factor_mad, percent=False)]
+                    _spread(g.travel_factor_median, g.travel_factor_mad, percent=False)]
                    for g in groups]
     return "\n\n".join([
         heading("Calibration"),
@@ -429,10 +419,6 @@ def calibration_page(data: SiteData) -> str:
     ]) + "\n"
 
 
-def _get(obj: Any, name: str) -> Any:
-    return getattr(obj, name, None)
-
-
 def _spread(median: float | None, mad: float | None, percent: bool = True) -> str:
     if median is None:
         return NONE
@@ -444,19 +430,20 @@ def _spread(median: float | None, mad: float | None, percent: bool = True) -> st
 def calibration_charts(data: SiteData) -> Iterator[tuple[str, str]]:
     cal = data.analysis.calibration
     families = [cal.families[name] for name in sorted(cal.families)]
-    for name, value, mad, words, scale in (
-            ("efficiency", "efficiency", "efficiency_mad", "apparent efficiency (%)", 100.0),
-            ("travel", "travel_factor", "travel_factor_mad", "travel factor (measured / computed)", 1.0)):
+    for name, value, count_of, words, scale in (
+            ("efficiency", "efficiency", "n", "apparent efficiency (%)", 100.0),
+            ("travel", "travel_factor", "n_travel", "travel factor (measured / computed)", 1.0)):
         rows = []
         for g in families:
-            v = _get(g, f"{value}_median") if _get(g, f"{value}_median") is not None else _get(g, value)
+            own = getattr(g, f"{value}_median")
+            v = own if own is not None else getattr(g, value)
             if v is None:
                 continue
-            spread = _get(g, mad) or 0.0
-            count = g.n if name == "efficiency" else g.n_travel
+            spread = getattr(g, f"{value}_mad") or 0.0
+            count = getattr(g, count_of)
             rows.append(svg.DotRow(g.name, v * scale, (v - spread) * scale, (v + spread) * scale,
                                    f"{count} build{'s' if count != 1 else ''}"))
-        shop = _get(cal.shop, value)
+        shop = getattr(cal.shop, value)
         reference = (shop * scale, "shop-wide") if shop is not None else None
         yield f"charts/calibration-{name}.svg", svg.dot_rows_chart(rows, words, reference)
 
@@ -466,18 +453,14 @@ def calibration_charts(data: SiteData) -> Iterator[tuple[str, str]]:
 def build_files(data: SiteData, build: Build) -> Iterator[tuple[str, str]]:
     sizing = data.sizing(build.id)
     name = slug(build.id)
-    pictures = []
-    if sizing is not None:
-        yield f"builds/{name}-linkage.svg", linkage_svg(data, build, sizing)
-        pictures.append("linkage")
-        curve = data.analysis.effort_curve(build.id)
-        if curve:
-            yield f"builds/{name}-effort.svg", effort_curve_svg(data, build, sizing, curve)
-            pictures.append("effort")
-    yield f"builds/{name}.md", build_page(data, build, sizing, pictures)
+    yield f"builds/{name}-linkage.svg", linkage_svg(data, build, sizing)
+    curve = data.analysis.effort_curve(build.id)
+    if curve:
+        yield f"builds/{name}-effort.svg", effort_curve_svg(data, build, sizing, curve)
+    yield f"builds/{name}.md", build_page(data, build, sizing, with_curve=bool(curve))
 
 
-def build_page(data: SiteData, build: Build, sizing: Any, pictures: list[str]) -> str:
+def build_page(data: SiteData, build: Build, sizing: Any, with_curve: bool) -> str:
     show = data.show
     name = slug(build.id)
     out = [heading(build.id),
@@ -487,21 +470,17 @@ def build_page(data: SiteData, build: Build, sizing: Any, pictures: list[str]) -
                    md(build.technician), md(build.vehicle)]])]
     if build.outcome:
         out.append(f"**Outcome:** {md(build.outcome)}")
-    if sizing is not None:
-        out += flag_blocks(sizing)
-        out.append("## Computed against measured")
-        out.append(result_table(data, build, sizing))
-        out.append(prediction_text(data, build))
-        out.append("## Pedal linkage")
-        out.append(f"![Pedal linkage of {md(build.id)}, to scale]({name}-linkage.svg)")
-        if "effort" in pictures:
-            out.append("## Pedal effort through the stroke")
-            out.append(f"![Pedal effort against pad travel for {md(build.id)}]({name}-effort.svg)")
-        out.append("## Ratios, travel, pressure and volume")
-        out.append(engineering_table(data, build, sizing))
-    else:
-        out.append('!!! failure "Not sized"\n    The engine could not size this build; '
-                   "check the record with the command line tool.")
+    out += flag_blocks(sizing)
+    out.append("## Computed against measured")
+    out.append(result_table(data, build, sizing))
+    out.append(prediction_text(data, build))
+    out.append("## Pedal linkage")
+    out.append(f"![Pedal linkage of {md(build.id)}, to scale]({name}-linkage.svg)")
+    if with_curve:
+        out.append("## Pedal effort through the stroke")
+        out.append(f"![Pedal effort against pad travel for {md(build.id)}]({name}-effort.svg)")
+    out.append("## Ratios, travel, pressure and volume")
+    out.append(engineering_table(data, build, sizing))
     out.append("## Inputs")
     for title, section in (("Gearbox", build.gearbox), ("Clutch", build.clutch),
                            ("Fork", build.fork), ("Master cylinder", build.master),
@@ -539,25 +518,23 @@ def result_table(data: SiteData, build: Build, sizing: Any) -> str:
     effort_row = [f"Pedal effort at {pct(sizing.efficiency)} efficiency",
                   show.q(sizing.effort_predicted, "force"),
                   show.q(measured.pedal_effort if measured else None, "force"),
-                  pct(deltas.effort if deltas else None, signed=True)]
+                  pct(deltas.effort, signed=True)]
     return table(["", "Computed", "Measured", "Difference"], [
         ["Pedal effort, no losses", show.q(sizing.effort_ideal, "force"), "", ""],
         effort_row,
         ["Slave travel", show.q(sizing.slave_travel, "length"),
          show.q(measured.slave_travel if measured else None, "length"),
-         pct(deltas.slave_travel if deltas else None, signed=True)],
+         pct(deltas.slave_travel, signed=True)],
         ["Pad travel to release", show.q(sizing.pad_travel_to_release, "length"),
          show.q(measured.pad_travel_to_release if measured else None, "length"), ""],
         ["Floor gap (master bottoms early)", show.q(sizing.floor_gap, "length"),
          show.q(measured.floor_gap if measured else None, "length"),
-         pct(deltas.floor_gap if deltas else None, signed=True)],
+         pct(deltas.floor_gap, signed=True)],
     ]) + (f"\n\nMeasured with: {md(measured.method)}" if measured and measured.method else "")
 
 
 def prediction_text(data: SiteData, build: Build) -> str:
     prediction = data.prediction(build.id)
-    if prediction is None:
-        return ""
     if prediction.effort is None:
         return f"**Calibrated prediction:** {md(prediction.note or 'not enough history')}"
     text = f"**Calibrated prediction:** {data.show.q(prediction.effort, 'force')}"
@@ -603,10 +580,10 @@ def engineering_table(data: SiteData, build: Build, sizing: Any) -> str:
 
 
 def similar_table(data: SiteData, build: Build) -> str:
-    similar = similar_of(data.analysis, build.id)
+    similar = data.analysis.similar[build.id]
     if not similar:
         return "No similar measured builds yet."
-    rows = [[build_link(s.id, "builds") if s.id in data.by_id else md(s.id), f"{s.distance:.2f}",
+    rows = [[build_link(s.id, "builds"), f"{s.distance:.2f}",
              md("; ".join(s.differs)) or "nothing notable", md(s.status),
              data.show.q(s.measured_effort, "force"), md(s.outcome)] for s in similar]
     return ("Distance 0 is an identical build; each 1.0 is about one different category or a "
@@ -618,7 +595,7 @@ def similar_table(data: SiteData, build: Build) -> str:
 
 def linkage_svg(data: SiteData, build: Build, sizing: Any) -> str:
     link = sizing.linkage
-    if link.mode == "layout" and link.rest is not None and link.stop is not None:
+    if link.rest is not None:  # layout mode: the engine gives both poses
         rest = (link.rest.pivot, link.rest.pad, link.rest.clevis, link.rest.pushrod_seat)
         stop = (link.stop.pivot, link.stop.pad, link.stop.clevis, link.stop.pushrod_seat)
         caption = f"{build.id}: pedal linkage from the recorded layout, to scale"
@@ -635,8 +612,7 @@ def simple_poses(build: Build, sizing: Any) -> tuple[tuple, tuple]:
     over radius); the pushrod runs forward from the clevis, level at rest, the master piston
     moved by the stroke the engine used."""
     pedal = build.pedal
-    to_pad = pedal.pivot_to_pad or sizing.ratio_pedal * (pedal.pivot_to_clevis or 0.05)
-    to_clevis = pedal.pivot_to_clevis or to_pad / sizing.ratio_pedal
+    to_pad, to_clevis = pedal.pivot_to_pad, pedal.pivot_to_clevis  # simple mode has both
     swing = pedal.pad_travel / to_pad
     rod = max(0.45 * to_pad, 2.5 * build.master.stroke)
     pivot = (0.0, 0.0)
