@@ -80,40 +80,44 @@ def check_replaceable(out: Path) -> None:
                                   "not replacing it (choose another --out)")
 
 
+def shop_site_src(analysis: Any, site_src: str | os.PathLike | None) -> Path:
+    """The shop's own site sources: `site_src` when given, else `site_src/` beside the
+    records folder (which may not exist)."""
+    if site_src is not None:
+        return Path(site_src)
+    return Path(analysis.shop.root).resolve().parent / "site_src"
+
+
 def source_layers(analysis: Any, site_src: str | os.PathLike | None) -> list[Path]:
     """Folders of site sources, later ones overriding earlier ones file by file."""
     layers = [PACKAGED_SITE_SRC]
-    if site_src is not None:
-        extra = Path(site_src)
-        if not extra.is_dir():
-            raise SiteBuildError(extra, "site sources folder not found")
-        layers.append(extra)
-    else:
-        beside = Path(analysis.shop.root).resolve().parent / "site_src"
-        if beside.is_dir():
-            layers.append(beside)
-    unique: list[Path] = []
-    for layer in layers:
-        if layer.resolve() not in [u.resolve() for u in unique]:
-            unique.append(layer)
-    return unique
+    extra = shop_site_src(analysis, site_src)
+    if extra.is_dir():
+        if extra.resolve() != PACKAGED_SITE_SRC.resolve():
+            layers.append(extra)
+    elif site_src is not None:
+        raise SiteBuildError(extra, "site sources folder not found")
+    return layers
 
 
 def write_sources(layers: list[Path], work: Path) -> Path:
-    """Copy the layered sources: mkdocs.yml and overrides/ into work, the rest into work/docs."""
+    """Copy the layered sources, each file once from the last layer that has it:
+    mkdocs.yml and overrides/ into work, the rest into work/docs."""
+    chosen: dict[Path, Path] = {}
+    for layer in layers:
+        for path in layer.rglob("*"):
+            relative = path.relative_to(layer)
+            if path.is_file() and not any(p.startswith(".") or p == "__pycache__"
+                                          for p in relative.parts):
+                chosen[relative] = path
+    if Path(CONFIG) not in chosen:
+        raise SiteBuildError(layers[-1], f"no {CONFIG} in the site sources")
     docs = work / "docs"
     docs.mkdir()
-    for layer in layers:
-        for path in sorted(layer.rglob("*")):
-            relative = path.relative_to(layer)
-            if path.is_dir() or any(p.startswith(".") or p == "__pycache__" for p in relative.parts):
-                continue
-            top = relative.parts[0]
-            target = work / relative if top in (CONFIG, THEME_DIR) else docs / relative
-            target.parent.mkdir(parents=True, exist_ok=True)
-            shutil.copyfile(path, target)
-    if not (work / CONFIG).exists():
-        raise SiteBuildError(layers[-1], f"no {CONFIG} in the site sources")
+    for relative, path in sorted(chosen.items()):
+        target = work / relative if relative.parts[0] in (CONFIG, THEME_DIR) else docs / relative
+        target.parent.mkdir(parents=True, exist_ok=True)
+        shutil.copyfile(path, target)
     return docs
 
 
@@ -157,7 +161,8 @@ def run_mkdocs(config_file: Path, docs: Path, site_dir: Path, site_name: str | N
     logger.addHandler(collect)
     logger.propagate = False  # keep mkdocs' own chatter off the terminal; errors come back to us
     try:
-        overrides = {"site_name": plain(site_name)} if site_name and plain(site_name) else {}
+        title = plain(site_name or "")
+        overrides = {"site_name": title} if title else {}
         config = load_config(config_file=str(config_file), docs_dir=str(docs),
                              site_dir=str(site_dir), strict=True, **overrides)
         config.plugins.on_startup(command="build", dirty=False)

@@ -14,7 +14,7 @@ from pathlib import Path
 from typing import Any
 
 from builder.problems import InputError, terminal_safe
-from builder.site.build import PACKAGED_SITE_SRC, build_site
+from builder.site.build import PACKAGED_SITE_SRC, build_site, shop_site_src
 
 
 class _QuietHandler(SimpleHTTPRequestHandler):
@@ -79,8 +79,7 @@ def serve(analysis_loader: Callable[[], Any] | str | os.PathLike, host: str = "1
     out = work / "site"
     try:
         build_site(analysis, out, site_src)
-        watched = [Path(analysis.shop.root), PACKAGED_SITE_SRC,
-                   Path(site_src) if site_src else Path(analysis.shop.root).resolve().parent / "site_src"]
+        watched = [Path(analysis.shop.root), PACKAGED_SITE_SRC, shop_site_src(analysis, site_src)]
         stamp = source_stamp(watched)
         with StaticServer(out, host, port) as server:
             print(f"Serving the site at {server.url} (Ctrl+C to stop)", file=sys.stderr)
