@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Sequence
+from typing import ClassVar, Sequence
 
 from builder.site.escape import xml
 
@@ -28,7 +28,6 @@ class Series:
     points: Sequence[Point]
     color: str
     kind: str = "dots"  # "dots" | "line"
-    dashed: bool = False
 
 
 @dataclass(frozen=True)
@@ -61,21 +60,18 @@ class XYChart:
     bands: list[Band] = field(default_factory=list)
     markers: list[Marker] = field(default_factory=list)
     identity_band: float | None = None  # draw y = x and a +-fraction band around it
-    title: str = ""
-    width: int = 640
-    height: int = 400
+    width: ClassVar[int] = 640
+    height: ClassVar[int] = 400
 
     def render(self) -> str:
         xs, ys = self._extent()
-        left, right, top = 64, 16, 34 if self.title else 14
+        left, right, top = 64, 16, 14
         legend_rows = self._legend_entries()
         legend_lines = math.ceil(len(legend_rows) / 3)
         bottom = 62 + 18 * legend_lines
         plot = _Plot(xs, ys, left, top, self.width - left - right, self.height - top - bottom)
-        out = [_open(self.width, self.height, self.title or self.y_label)]
-        if self.title:
-            out.append(_text(self.width / 2, 20, self.title, anchor="middle", size=15, weight="600"))
-        out.append(plot.grid_and_axes(self.x_label, self.y_label))
+        out = [_open(self.width, self.height, self.y_label),
+               plot.grid_and_axes(self.x_label, self.y_label)]
         out.append(f'<g clip-path="url(#{plot.clip_id})">')
         for band in self.bands:
             out.append(plot.hband(band.low, band.high, band.color))
@@ -126,11 +122,11 @@ class DotRow:
     note: str = ""
 
 
-def dot_rows_chart(rows: Sequence[DotRow], x_label: str, reference: tuple[float, str] | None,
-                   title: str = "", width: int = 640) -> str:
+def dot_rows_chart(rows: Sequence[DotRow], x_label: str,
+                   reference: tuple[float, str] | None) -> str:
     """Horizontal dot chart: one labelled row per group, whiskers for the spread."""
-    row_h = 28
-    left, right, top = 150, 120, 34 if title else 14
+    row_h, width = 28, 640
+    left, right, top = 150, 120, 14
     height = top + row_h * max(len(rows), 1) + 74
     values = [v for r in rows for v in (r.value, r.low, r.high) if v is not None]
     if reference is not None:
@@ -138,10 +134,7 @@ def dot_rows_chart(rows: Sequence[DotRow], x_label: str, reference: tuple[float,
     lo, hi = (min(values), max(values)) if values else (0.0, 1.0)
     plot = _Plot((lo, hi), (0.0, float(max(len(rows), 1))), left, top, width - left - right,
                  row_h * max(len(rows), 1), y_grid=False)
-    out = [_open(width, height, title or x_label)]
-    if title:
-        out.append(_text(width / 2, 20, title, anchor="middle", size=15, weight="600"))
-    out.append(plot.grid_and_axes(x_label, "", y_ticks=False))
+    out = [_open(width, height, x_label), plot.grid_and_axes(x_label, "", y_ticks=False)]
     if reference is not None:
         out.append(plot.marker(Marker("x", reference[0], reference[1], MUTED)))
     for i, row in enumerate(rows):
@@ -181,24 +174,28 @@ def linkage_drawing(rest: Sequence[Point], stop: Sequence[Point], bore: float, s
              seat[1] - uy * stroke * 0.05 + ny * s * half + uy * t * body_len)
             for s, t in ((1, 0), (1, 1), (-1, 1), (-1, 0))]
     every = list(rest) + list(stop) + body
-    xs, ys = [p[0] for p in every], [p[1] for p in every]
-    span = max(max(xs) - min(xs), max(ys) - min(ys), 1e-3)
+    x_min, y_max = min(p[0] for p in every), max(p[1] for p in every)
+    x_span, y_span = max(p[0] for p in every) - x_min, y_max - min(p[1] for p in every)
+    span = max(x_span, y_span, 1e-3)
     width, height, margin = 640, 420, 40
-    scale = min((width - 2 * margin - 60) / max(max(xs) - min(xs), 1e-3),
-                (height - 2 * margin - 40) / max(max(ys) - min(ys), 1e-3))
-    ox = margin + 30 + ((width - 2 * margin - 60) - (max(xs) - min(xs)) * scale) / 2
-    oy = margin + ((height - 2 * margin - 40) - (max(ys) - min(ys)) * scale) / 2
+    scale = min((width - 2 * margin - 60) / max(x_span, 1e-3),
+                (height - 2 * margin - 40) / max(y_span, 1e-3))
+    ox = margin + 30 + ((width - 2 * margin - 60) - x_span * scale) / 2
+    oy = margin + ((height - 2 * margin - 40) - y_span * scale) / 2
 
     def p(pt: Point) -> str:
-        return f"{ox + (pt[0] - min(xs)) * scale:.1f} {oy + (max(ys) - pt[1]) * scale:.1f}"
+        return f"{ox + (pt[0] - x_min) * scale:.1f} {oy + (y_max - pt[1]) * scale:.1f}"
+
+    def dot(pt: Point, radius: float, paint: str) -> str:
+        x, y = p(pt).split()
+        return f'<circle cx="{x}" cy="{y}" r="{radius:g}" {paint}/>'
 
     def arm(pose: Sequence[Point], color: str, dash: str) -> str:
         pv, pd, cl, st = pose
         return (f'<path d="M{p(pd)}L{p(pv)}L{p(cl)}Z" fill="none" stroke="{color}" stroke-width="5" '
                 f'stroke-linejoin="round"{dash}/>'
                 f'<path d="M{p(cl)}L{p(st)}" stroke="{color}" stroke-width="3"{dash}/>'
-                f'<circle cx="{p(pd).split()[0]}" cy="{p(pd).split()[1]}" r="7" fill="{color}"/>'
-                f'<circle cx="{p(st).split()[0]}" cy="{p(st).split()[1]}" r="3.5" fill="{color}"/>')
+                + dot(pd, 7, f'fill="{color}"') + dot(st, 3.5, f'fill="{color}"'))
 
     def label(pt: Point, text: str, dx: float = 10, dy: float = -8) -> str:
         x, y = (float(v) for v in p(pt).split())
@@ -209,8 +206,7 @@ def linkage_drawing(rest: Sequence[Point], stop: Sequence[Point], bore: float, s
            f'stroke="{MUTED}" stroke-width="1.5"/>',
            arm(stop, "#90a4ae", ' stroke-dasharray="6 4"'),
            arm(rest, "#1565c0", ""),
-           f'<circle cx="{p(pivot).split()[0]}" cy="{p(pivot).split()[1]}" r="6" fill="#fff" '
-           f'stroke="{INK}" stroke-width="2"/>',
+           dot(pivot, 6, f'fill="#fff" stroke="{INK}" stroke-width="2"'),
            label(pivot, "pivot"), label(pad, "pad at rest"), label(stop[1], "pad at the stop"),
            label(clevis, "clevis", -46, -8),
            label(((clevis[0] + seat[0]) / 2, (clevis[1] + seat[1]) / 2), "pushrod", -20, 18),
@@ -312,8 +308,7 @@ class _Plot:
     def series(self, s: Series) -> str:
         if s.kind == "line":
             d = "M" + "L".join(f"{self.x(x):.1f} {self.y(y):.1f}" for x, y in s.points)
-            dash = ' stroke-dasharray="6 4"' if s.dashed else ""
-            return f'<path d="{d}" fill="none" stroke="{s.color}" stroke-width="2.2"{dash}/>'
+            return f'<path d="{d}" fill="none" stroke="{s.color}" stroke-width="2.2"/>'
         dots = "".join(f'<circle cx="{self.x(x):.1f}" cy="{self.y(y):.1f}" r="4"/>' for x, y in s.points)
         return f'<g fill="{s.color}" fill-opacity="0.8">{dots}</g>'
 
@@ -325,9 +320,9 @@ def _open(width: int, height: int, title: str) -> str:
 
 
 def _text(x: float, y: float, text: str, anchor: str = "start", size: int = 13,
-          weight: str = "400", color: str = INK) -> str:
+          color: str = INK) -> str:
     return (f'<text x="{x:.1f}" y="{y:.1f}" text-anchor="{anchor}" font-size="{size}" '
-            f'font-weight="{weight}" fill="{color}" {FONT}>{xml(text)}</text>')
+            f'font-weight="400" fill="{color}" {FONT}>{xml(text)}</text>')
 
 
 def _legend(rows: Sequence[tuple[str, str, str]], left: float, top: float, width: float) -> str:
