@@ -19,7 +19,7 @@ from click.testing import CliRunner
 
 from builder.cli import main
 from builder.site.serve import StaticServer
-from test_browser_site import Watch, browser, search  # noqa: F401 (browser: a fixture)
+from test_browser_site import browser, page, search  # noqa: F401 (browser, page: fixtures)
 
 pytestmark = pytest.mark.browser
 
@@ -88,17 +88,6 @@ def served(tmp_path_factory):
     assert result.exit_code == 0, result.output
     with StaticServer(base / "site") as server:
         yield server.url
-
-
-
-
-@pytest.fixture
-def page(browser):
-    context = browser.new_context()
-    page = context.new_page()
-    page.watch = Watch(page)
-    yield page
-    context.close()
 
 
 def assert_inert(page) -> None:

@@ -4,16 +4,12 @@ Invented data only: family codes, part ids and vehicles are made up. Quantities 
 """
 from __future__ import annotations
 
-import dataclasses
 import datetime as dt
 import math
 
 from builder.model import (Build, Clutch, Fork, Gearbox, Line, Master, Measured, Part, Pedal,
-                           PedalLayout, Shop, ShopRules, Slave)
-
-IN = 0.0254  # m per inch, exact by definition (NIST SP 811, B.8)
-LBF = 4.4482216152605  # N per lbf, exact by definition (NIST SP 811, B.8)
-PSI = LBF / IN**2
+                           PedalLayout, Shop, Slave)
+from test_engine_factories import INCH as IN, POUND_FORCE as LBF, PSI, make_rules
 
 # Placed in every free-text field of the hostile build; none may become live markup.
 HOSTILE = [
@@ -27,20 +23,6 @@ HOSTILE = [
 ]
 HOSTILE_TEXT = " ".join(HOSTILE)
 HOSTILE_ID = "ZZ-666"
-
-
-def rules(**changes) -> ShopRules:
-    base = ShopRules(
-        site_title="Test Shop Fitment",
-        display_units="imperial",
-        effort_band=(90.0, 160.0),
-        min_travel_margin=0.10,
-        latest_release_point=0.80,
-        default_efficiency=0.85,
-        hose_expansion={"rubber": 3e-13, "braided_ptfe": 1e-13, "steel": 1e-14},
-        fluid_bulk_modulus=1.5e9,
-    )
-    return dataclasses.replace(base, **changes)
 
 
 def catalogue() -> dict[str, dict[str, Part]]:
@@ -102,7 +84,7 @@ def shop(n: int = 6, hostile: bool = False, root: str = "records") -> Shop:
                     layout=i % 2 == 1, family=("QX-5", "RB-6")[i % 2]) for i in range(n)]
     if hostile:
         builds.append(build(n, text=HOSTILE_TEXT, build_id=HOSTILE_ID, status="measured"))
-    return Shop(root=root, rules=rules(), parts=catalogue(), builds=tuple(builds))
+    return Shop(root=root, rules=make_rules(), parts=catalogue(), builds=tuple(builds))
 
 
 def analysis(n: int = 6, hostile: bool = False, root: str = "records"):
