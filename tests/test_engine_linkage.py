@@ -161,3 +161,17 @@ def test_pushrod_in_line_with_the_arm_is_a_geometry_error():
     layout = PedalLayout((0.0, 0.0), (0.0, -0.28), (0.0, -0.05), (0.0, -0.19), 0.5)
     with pytest.raises(GeometryError, match="pushrod"):
         size_build(make_build(layout=layout), make_rules())
+
+
+def test_lever_pedal_schematic_poses_follow_its_lengths_and_travel():
+    # Arc length s = r * theta (OpenStax College Physics, "Rotation Angle and Angular
+    # Velocity"); lever travel ratio x_pad = R_p * s (Shigley): the stop pose swings the pad
+    # through 6 in of arc on an 11 in radius and moves the seat by 6 / 5.5 in.
+    inch = INCH
+    rest, stop = LeverPedal(11 * inch, 2 * inch, 6 * inch).poses()
+    assert rest.pivot == stop.pivot == (0.0, 0.0)
+    assert rest.pad == pytest.approx((0.0, -11 * inch))
+    assert math.hypot(*stop.pad) == pytest.approx(11 * inch)
+    assert math.atan2(stop.pad[0], -stop.pad[1]) * 11 * inch == pytest.approx(6 * inch)
+    assert math.hypot(*stop.clevis) == pytest.approx(2 * inch)
+    assert stop.pushrod_seat[0] - rest.pushrod_seat[0] == pytest.approx(6 / 5.5 * inch)

@@ -38,17 +38,21 @@ def arc_length(radius: float, angle: float) -> float:
     return radius * angle
 
 
+SCHEMATIC_ROD = 0.45  # pushrod drawn this fraction of pivot-to-pad long in simple mode
+
+
 class LeverPedal:
     """Simple mode: constant ratio pivot-to-pad / pivot-to-clevis (Shigley, levers)."""
 
     mode = "simple"
     binds = False  # a lever has no over-centre point
-    __slots__ = ("ratio", "pad_travel_at_stop", "stroke_at_stop")
+    __slots__ = ("ratio", "pad_travel_at_stop", "stroke_at_stop", "to_pad", "to_clevis")
 
     def __init__(self, pivot_to_pad: float, pivot_to_clevis: float, pad_travel: float):
         self.ratio = lever_ratio(pivot_to_pad, pivot_to_clevis)
         self.pad_travel_at_stop = pad_travel
         self.stroke_at_stop = pad_travel / self.ratio
+        self.to_pad, self.to_clevis = pivot_to_pad, pivot_to_clevis
 
     def at_stroke(self, stroke: float) -> tuple[float, float]:
         """(pad travel x_pad = R_p * s in m, ratio R_p) at master stroke s (m);
@@ -65,8 +69,23 @@ class LeverPedal:
             (self.pad_travel_at_stop, self.stroke_at_stop, self.ratio, 0.0),
         )
 
-    def poses(self) -> tuple[LinkagePose | None, LinkagePose | None]:
-        return None, None
+    def poses(self) -> tuple[LinkagePose, LinkagePose]:
+        """Schematic rest and stop poses for a drawing, master bottoming ignored as in
+        layout mode: the pad hangs straight below the pivot at rest and swings forward (+x)
+        through theta = pad travel / pivot-to-pad (arc length, OpenStax "Rotation Angle and
+        Angular Velocity"); the pushrod runs level from the clevis at a drawing length of
+        0.45 * pivot-to-pad (not a record value) and its seat moves by the stroke at the stop.
+        """
+        rod = SCHEMATIC_ROD * self.to_pad
+
+        def pose(angle: float, stroke: float) -> LinkagePose:
+            sin_a, cos_a = math.sin(angle), math.cos(angle)
+            return LinkagePose(pivot=(0.0, 0.0), pad=(self.to_pad * sin_a, -self.to_pad * cos_a),
+                               clevis=(self.to_clevis * sin_a, -self.to_clevis * cos_a),
+                               pushrod_seat=(rod + stroke, -self.to_clevis))
+
+        swing = self.pad_travel_at_stop / self.to_pad
+        return pose(0.0, 0.0), pose(swing, self.stroke_at_stop)
 
 
 class SliderCrankPedal:

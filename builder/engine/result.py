@@ -33,8 +33,8 @@ class Linkage:
     pushrod_angle_max: float | None  # rad, largest angle to the bore axis (layout mode)
     # (pad travel m, master stroke m, instantaneous ratio, pushrod angle rad) through the swing
     sweep: tuple[tuple[float, float, float, float], ...]
-    rest: LinkagePose | None  # layout mode only
-    stop: LinkagePose | None  # layout mode only (where the pedal would be at its stop)
+    rest: LinkagePose  # layout mode: the record's frame; simple mode: a schematic
+    stop: LinkagePose  # where the pedal would be at its stop, master bottoming ignored
 
 
 @dataclass(frozen=True, slots=True)

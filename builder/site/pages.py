@@ -595,35 +595,12 @@ def similar_table(data: SiteData, build: Build) -> str:
 
 def linkage_svg(data: SiteData, build: Build, sizing: Any) -> str:
     link = sizing.linkage
-    if link.rest is not None:  # layout mode: the engine gives both poses
-        rest = (link.rest.pivot, link.rest.pad, link.rest.clevis, link.rest.pushrod_seat)
-        stop = (link.stop.pivot, link.stop.pad, link.stop.clevis, link.stop.pushrod_seat)
-        caption = f"{build.id}: pedal linkage from the recorded layout, to scale"
-    else:
-        rest, stop = simple_poses(build, sizing)
-        caption = f"{build.id}: schematic from the two pedal lengths, to scale"
+    rest = (link.rest.pivot, link.rest.pad, link.rest.clevis, link.rest.pushrod_seat)
+    stop = (link.stop.pivot, link.stop.pad, link.stop.clevis, link.stop.pushrod_seat)
+    source = ("pedal linkage from the recorded layout" if link.mode == "layout"
+              else "schematic from the two pedal lengths")
     return svg.linkage_drawing(rest, stop, build.master.bore, build.master.stroke,
-                               data.show.length_unit(), caption)
-
-
-def simple_poses(build: Build, sizing: Any) -> tuple[tuple, tuple]:
-    """Hanging pedal drawn from pivot-to-pad and pivot-to-clevis: pad straight below the
-    pivot at rest, swung forward (+x) through the angle its pad travel implies (arc length
-    over radius); the pushrod runs forward from the clevis, level at rest, the master piston
-    moved by the stroke the engine used."""
-    pedal = build.pedal
-    to_pad, to_clevis = pedal.pivot_to_pad, pedal.pivot_to_clevis  # simple mode has both
-    swing = pedal.pad_travel / to_pad
-    rod = max(0.45 * to_pad, 2.5 * build.master.stroke)
-    pivot = (0.0, 0.0)
-
-    def pose(angle: float, stroke: float) -> tuple:
-        s, c = math.sin(angle), math.cos(angle)
-        clevis = (to_clevis * s, -to_clevis * c)
-        seat = (rod + stroke, -to_clevis)
-        return pivot, (to_pad * s, -to_pad * c), clevis, seat
-
-    return pose(0.0, 0.0), pose(swing, sizing.master_stroke_used)
+                               data.show.length_unit(), f"{build.id}: {source}, to scale")
 
 
 def effort_curve_svg(data: SiteData, build: Build, sizing: Any,
