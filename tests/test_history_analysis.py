@@ -5,21 +5,16 @@ import math
 import pytest
 
 from builder.engine import size_build
+from builder.engine.result import Flag
 from builder.history import analyse, analyse_proposal, calibrate
-from builder.model import Pedal, PedalLayout, Shop, ShopRules
+from builder.history.analysis import judged_on_history
+from builder.history.calibration import Prediction
+from builder.model import Pedal, PedalLayout, Shop
 from builder.problems import InputError
+from test_engine_factories import make_rules
 from test_history_factories import INCH, make_build, make_sizing
 
-RULES = ShopRules(
-    site_title="Invented test shop",
-    display_units="imperial",
-    effort_band=(80.0, 160.0),
-    min_travel_margin=0.10,
-    latest_release_point=0.80,
-    default_efficiency=0.85,
-    hose_expansion={"rubber": 1.0e-13, "braided_ptfe": 2.0e-14, "steel": 1.0e-15},
-    fluid_bulk_modulus=1.5e9,
-)
+RULES = make_rules()
 
 
 def invented_shop() -> Shop:
@@ -68,7 +63,8 @@ def test_similar_lists_exclude_the_build_itself():
         found = analysis.similar[build_id]
         assert len(found) == 3 and build_id not in [f.id for f in found]
         assert [f.distance for f in found] == sorted(f.distance for f in found)
-    assert len(analysis.similar_for("HW-000", k=6)) == 6
+    _, _, six, _ = analyse_proposal(analysis, analysis.builds["HW-000"], k=6)
+    assert len(six) == 6 and "HW-000" not in [f.id for f in six]
 
 
 def test_proposal_against_the_history():
@@ -104,13 +100,6 @@ def test_impossible_pedal_layout_is_an_input_error():
 def test_effort_band_is_judged_on_the_calibrated_effort():
     # A 150 N default-efficiency figure is above a 60..140 N band; the shop's own history
     # (apparent efficiency 1.0 here) predicts 100 N, inside it: the flag must follow history.
-    import dataclasses
-
-    from builder.engine.result import Flag
-    from builder.history.analysis import judged_on_history
-    from builder.history.calibration import Prediction
-    from test_engine_factories import make_rules
-
     rules = make_rules(effort_band=(60.0, 140.0))
     sizing = dataclasses.replace(
         make_sizing("QX-001", effort_ideal=100.0, effort_predicted=150.0),
@@ -130,8 +119,6 @@ def test_effort_band_is_judged_on_the_calibrated_effort():
 
 def test_effort_curve_is_sized_on_demand_and_matches_a_full_sizing():
     # the whole-shop pass leaves the plotted series out; asking for it gives the engine's own
-    from test_engine_factories import make_rules
-
     rules = make_rules()
     base = make_build("QX-001")
     curve = ((0.0, 0.0), (0.003, 1500.0), (0.007, 1800.0), (0.010, 1600.0))
@@ -147,11 +134,6 @@ def test_travel_short_is_judged_on_the_smaller_margin_after_measured_losses():
     # make_sizing: 20 mm computed slave travel, fork 2, 9.5 mm needed -> engine margin +5 %
     # (a warn against the 10 % minimum). History's travel factor 0.9 -> 18 mm -> 9 mm at the
     # bearing: 9 / 9.5 - 1 = -5.3 %, so the clutch would not release: the flag must fail.
-    from builder.engine.result import Flag
-    from builder.history.analysis import judged_on_history
-    from builder.history.calibration import Prediction
-    from test_engine_factories import make_rules
-
     rules = make_rules()
     sizing = dataclasses.replace(
         make_sizing("QX-001"), flags=(Flag("travel-short", "warn", "only 5 % over"),))

@@ -1,12 +1,13 @@
 """Everything the report and the site need about a shop's builds, computed once."""
 from __future__ import annotations
 
-from collections.abc import Callable, Iterator, Mapping
+from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import dataclass, field, replace
 
 from builder.engine import GeometryError, size_build
 from builder.engine.flags import EFFORT_CODES, effort_band_flags, margin_flags
 from builder.engine.result import Sizing
+from builder.engine.travel import bearing_travel
 from builder.history.calibration import Calibration, Prediction, calibrate
 from builder.history.deltas import Deltas, deltas
 from builder.history.similar import SimilarBuild, SimilarityIndex
@@ -46,6 +47,7 @@ class Analysis:
     """Sizing, deltas, calibration, calibrated predictions and similar builds of a shop."""
 
     shop: Shop
+    builds: dict[str, Build]  # every build by id, in the shop's order
     sizings: dict[str, Sizing]  # every build
     deltas: dict[str, Deltas]  # every build (all None without a measured section)
     calibration: Calibration
@@ -60,40 +62,20 @@ class Analysis:
 
         Sized again with the series on first use: the whole-shop pass leaves it out.
         """
-        sizing = self.sizings[build_id]
-        if sizing.effort_curve is not None:
-            return sizing.effort_curve
         if build_id not in self._curves:
-            build = next(b for b in self.shop.builds if b.id == build_id)
+            build = self.builds[build_id]
             self._curves[build_id] = None if not build.clutch.load_curve else size_build(
-                build, self.shop.rules, efficiency=sizing.efficiency).effort_curve
+                build, self.shop.rules, efficiency=self.sizings[build_id].efficiency
+            ).effort_curve
         return self._curves[build_id]
 
-    def similar_for(self, build_id: str, k: int | None = None) -> list[SimilarBuild]:
-        """The most similar measured builds to a recorded build, itself left out."""
-        if k is None or k == self.k:
-            return self.similar[build_id]
-        build = next(b for b in self.shop.builds if b.id == build_id)
-        return self.index.query(build, self.sizings[build_id], k=k, exclude_id=build_id)
 
-
-def analyse(shop: Shop, k: int = 5,
-            progress: Callable[[int, int], None] | None = None) -> Analysis:
+def analyse(shop: Shop, k: int = 5) -> Analysis:
     """Size every build with the shop rules, then deltas, calibration, predictions.
 
-    `progress(done, total)`, when given, is called as builds are sized. A pedal layout
-    that cannot push its master raises InputError naming every such build.
+    A pedal layout that cannot push its master raises InputError naming every such build.
     """
-    builds = {b.id: b for b in shop.builds}
-    sizings: dict[str, Sizing] = {}
-    problems: list[Problem] = []
-    for done, build in enumerate(shop.builds, start=1):
-        try:
-            sizings[build.id] = size_build(build, shop.rules, with_curve=False)
-        except GeometryError as error:
-            problems.append(_geometry_problem(build, error))
-        if progress is not None:
-            progress(done, len(builds))
+    sizings, problems = _size_all(shop.builds, shop.rules)
     if problems:
         raise InputError(problems)
     pairs = [(b, sizings[b.id]) for b in shop.builds]
@@ -102,8 +84,10 @@ def analyse(shop: Shop, k: int = 5,
     predictions = {b.id: calibration.predict(b, s) for b, s in pairs}
     sizings = {b.id: judged_on_history(s, predictions[b.id], shop.rules)
                for b, s in pairs}
+    builds = {b.id: b for b in shop.builds}
     return Analysis(
         shop=shop,
+        builds=builds,
         sizings=sizings,
         deltas={b.id: deltas(b, s) for b, s in pairs},
         calibration=calibration,
@@ -144,7 +128,7 @@ def judged_on_history(sizing: Sizing, prediction: Prediction, rules: ShopRules) 
         flags = tuple(f for f in flags if f.code not in EFFORT_CODES) + tuple(
             effort_band_flags(prediction.effort, rules, "Calibrated"))
     if prediction.travel_margin is not None and prediction.travel_margin < sizing.margin:
-        bearing = prediction.slave_travel / sizing.ratio_fork
+        bearing = bearing_travel(prediction.slave_travel, sizing.ratio_fork)
         after_losses = margin_flags(bearing, sizing.needed_bearing_travel, rules,
                                     "After the shop's measured travel losses, bearing travel")
         if after_losses:
@@ -152,15 +136,23 @@ def judged_on_history(sizing: Sizing, prediction: Prediction, rules: ShopRules) 
     return sizing if flags == sizing.flags else replace(sizing, flags=flags)
 
 
-def geometry_problems(builds: list[Build], rules: ShopRules) -> list[Problem]:
+def geometry_problems(builds: Sequence[Build], rules: ShopRules) -> list[Problem]:
     """A located problem for every build whose pedal layout cannot push its master."""
-    problems = []
+    return _size_all(builds, rules)[1]
+
+
+def _size_all(builds: Sequence[Build], rules: ShopRules
+              ) -> tuple[dict[str, Sizing], list[Problem]]:
+    """Sizings (without the effort series) of the builds that size, and a located problem
+    for each that cannot."""
+    sizings: dict[str, Sizing] = {}
+    problems: list[Problem] = []
     for build in builds:
         try:
-            size_build(build, rules, with_curve=False)
+            sizings[build.id] = size_build(build, rules, with_curve=False)
         except GeometryError as error:
             problems.append(_geometry_problem(build, error))
-    return problems
+    return sizings, problems
 
 
 def _geometry_problem(build: Build, error: GeometryError) -> Problem:
