@@ -34,6 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from builder.engine.result import Sizing
+from builder.engine.travel import bearing_travel, travel_margin
 from builder.history.robust import medians_leaving_one_out, quantile_without, scaled_mad
 from builder.model import Build
 
@@ -93,7 +94,6 @@ class GroupCalibration:
     travel_factor_median: float | None
     travel_factor_mad: float | None
     n_travel: int  # builds with a measured slave travel
-    travel_weight: float
     loo_median_abs_err: float | None  # median |r| of leave-one-out effort predictions
     loo_p90_abs_err: float | None  # 90th percentile of |r|
     residuals: tuple[float, ...]  # leave-one-out relative residuals r, ascending
@@ -121,18 +121,19 @@ class _Estimate:
 
 
 class _ShrunkMedians:
-    """Per-family medians shrunk toward the shop-wide median, with leave-one-out values."""
+    """Per-family medians shrunk toward the shop-wide median, with leave-one-out values.
 
-    def __init__(self, ids: list[str], families: list[str], values: list[float]):
-        self.values = np.asarray(values, dtype=float)
-        self.index = {build_id: i for i, build_id in enumerate(ids)}
-        self.families = families
-        self.members = _members(families)
-        n = len(values)
+    `rows` are (build id, gearbox family, value), one per counted build.
+    """
+
+    def __init__(self, rows: list[tuple[str, str, float]]):
+        self.index = {build_id: i for i, (build_id, _, _) in enumerate(rows)}
+        self.families = [family for _, family, _ in rows]
+        self.values = np.array([value for _, _, value in rows], dtype=float)
+        self.members = _members(self.families)
+        n = len(rows)
         self.shop_median = float(np.median(self.values)) if n else None
-        self.shop_mad = scaled_mad(self.values) if n else None
         self.family_median = {f: float(np.median(self.values[i])) for f, i in self.members.items()}
-        self.family_mad = {f: scaled_mad(self.values[i]) for f, i in self.members.items()}
         self.prior_builds = prior_builds(self.values, self.members)
         # medians without build i: shop-wide, and of its own family (NaN when it is alone)
         self.shop_loo = medians_leaving_one_out(self.values) if n >= 2 else np.full(n, np.nan)
@@ -140,7 +141,12 @@ class _ShrunkMedians:
         for members in self.members.values():
             if len(members) >= 2:
                 self.family_loo[members] = medians_leaving_one_out(self.values[members])
-        self.loo = np.array([_or_nan(self.estimate(families[i], ids[i]).value) for i in range(n)])
+
+    def leave_one_out(self) -> np.ndarray:
+        """Element i: the shrunk value for build i's family from the others (NaN when
+        too few are left)."""
+        return np.array([_or_nan(self.estimate(family, build_id).value)
+                         for build_id, family in zip(self.index, self.families)])
 
     def count(self, family: str | None) -> int:
         return len(self.members.get(family, ())) if family is not None else len(self.values)
@@ -150,11 +156,13 @@ class _ShrunkMedians:
         """(n, value used for predictions, own median, own scaled MAD, shrink weight);
         family None is the shop-wide group."""
         if family is None:
-            value = self.estimate(None).value
-            return len(self.values), value, self.shop_median, self.shop_mad, 1.0
+            mad = scaled_mad(self.values) if len(self.values) else None
+            return len(self.values), self.estimate(None).value, self.shop_median, mad, 1.0
         estimate = self.estimate(family)
-        return (self.count(family), estimate.value, self.family_median.get(family),
-                self.family_mad.get(family), estimate.weight)
+        members = self.members.get(family)
+        mad = scaled_mad(self.values[members]) if members is not None else None
+        return (self.count(family), estimate.value, self.family_median.get(family), mad,
+                estimate.weight)
 
     def estimate(self, family: str | None, exclude_id: str | None = None) -> _Estimate:
         """The shrunk value for `family` (None: shop-wide), the build `exclude_id` left out."""
@@ -203,11 +211,12 @@ class _Residuals:
 class Calibration:
     """Shop-wide and per-family calibration; `predict` gives a calibrated effort."""
 
-    def __init__(self, efficiency: _ShrunkMedians, travel: _ShrunkMedians, ids: list[str]):
+    def __init__(self, efficiency: _ShrunkMedians, travel: _ShrunkMedians):
         self._efficiency = efficiency
         self._travel = travel
         # effort residual: measured / predicted - 1 = e_loo / e - 1 (predicted = ideal / e_loo)
-        residuals = efficiency.loo / efficiency.values - 1.0
+        residuals = efficiency.leave_one_out() / efficiency.values - 1.0
+        ids = list(efficiency.index)
         known = np.isfinite(residuals)
         groups = {SHOP_WIDE: np.flatnonzero(known)}
         groups.update((f, members[known[members]]) for f, members in efficiency.members.items())
@@ -224,7 +233,7 @@ class Calibration:
 
     def _group(self, name: str, family: str | None) -> GroupCalibration:
         n, efficiency, efficiency_median, efficiency_mad, weight = self._efficiency.summary(family)
-        n_travel, travel, travel_median, travel_mad, travel_weight = self._travel.summary(family)
+        n_travel, travel, travel_median, travel_mad, _ = self._travel.summary(family)
         residuals = self._residuals.get(name)
         ordered = residuals.ordered if residuals is not None else np.empty(0)
         abs_err = np.abs(ordered)
@@ -239,7 +248,6 @@ class Calibration:
             travel_factor_median=travel_median,
             travel_factor_mad=travel_mad,
             n_travel=n_travel,
-            travel_weight=travel_weight,
             loo_median_abs_err=float(np.median(abs_err)) if len(abs_err) else None,
             loo_p90_abs_err=float(np.percentile(abs_err, 100 * ERROR_QUANTILE))
             if len(abs_err) else None,
@@ -266,8 +274,8 @@ class Calibration:
             basis=f"{_estimate_words(family, estimate)}; {interval_words}",
             note=None if interval else "no interval yet: too few leave-one-out residuals",
             slave_travel=slave,
-            travel_margin=None if slave is None else
-            slave / sizing.ratio_fork / sizing.needed_bearing_travel - 1.0,
+            travel_margin=None if slave is None else travel_margin(
+                bearing_travel(slave, sizing.ratio_fork), sizing.needed_bearing_travel),
         )
 
     def _interval(self, family: str, build_id: str, effort: float
@@ -307,10 +315,4 @@ def calibrate(pairs: Sequence[tuple[Build, Sizing]]) -> Calibration:
             effort_rows.append((build.id, family, sizing.effort_ideal / effort))
         if measured.slave_travel is not None and sizing.slave_travel > 0:
             travel_rows.append((build.id, family, measured.slave_travel / sizing.slave_travel))
-    efficiency = _ShrunkMedians(*_columns(effort_rows))
-    travel = _ShrunkMedians(*_columns(travel_rows))
-    return Calibration(efficiency, travel, [row[0] for row in effort_rows])
-
-
-def _columns(rows: list[tuple[str, str, float]]) -> tuple[list[str], list[str], list[float]]:
-    return [r[0] for r in rows], [r[1] for r in rows], [r[2] for r in rows]
+    return Calibration(_ShrunkMedians(effort_rows), _ShrunkMedians(travel_rows))
