@@ -8,8 +8,7 @@ from builder.engine.result import Linkage, Sizing
 from builder.model import (
     Build, Clutch, Fork, Gearbox, Line, Master, Measured, Pedal, Slave,
 )
-
-INCH = 0.0254  # m, exact by definition (NIST SP 811, B.8)
+from test_engine_factories import INCH
 
 
 def make_build(build_id: str, family: str = "QX-5", status: str = "measured",
