@@ -123,7 +123,7 @@ def write_sources(layers: list[Path], work: Path) -> Path:
 
 def write_generated(analysis: Any, docs: Path, progress: Progress | None) -> None:
     """Generated pages and pictures go over the sources; the method page gets the
-    similarity section from the history module."""
+    calibration and similarity sections from the history module."""
     made: set[Path] = set()
     for relative, text in generated_pages(analysis, progress):
         target = docs / relative
@@ -133,10 +133,10 @@ def write_generated(analysis: Any, docs: Path, progress: Progress | None) -> Non
         target.write_text(text, encoding="utf-8")
     method = docs / "method.md"
     if method.exists():
-        from builder.history import distance_description
+        from builder.history import calibration_description, distance_description
 
         with method.open("a", encoding="utf-8") as handle:
-            handle.write(method_appendix(distance_description()))
+            handle.write(method_appendix(calibration_description(), distance_description()))
 
 
 class _Collect(logging.Handler):

@@ -626,6 +626,8 @@ def effort_curve_svg(data: SiteData, build: Build, sizing: Any,
     return chart.render()
 
 
-def method_appendix(description: str) -> str:
-    """The similarity section appended to the hand-written method page (project text)."""
-    return "\n\n## How similar builds are found\n\n" + description.strip() + "\n"
+def method_appendix(calibration: str, similarity: str) -> str:
+    """The calibration and similarity sections appended to the hand-written method page,
+    in the history module's own words (project text), so page and code cannot drift."""
+    return (f"\n\n## Calibration\n\n{calibration.strip()}\n"
+            f"\n## How similar builds are found\n\n{similarity.strip()}\n")
