@@ -25,19 +25,16 @@ def check_file(analysis, path: Path, k: int) -> CheckResult:
 
     if not path.is_file():
         raise InputError([Problem(str(path), 0, 0, "file", "no such file")])
-    build = _recorded(analysis.shop.builds, path) or load_build_file(path, analysis.shop)
+    build = _recorded(analysis, path) or load_build_file(path, analysis.shop)
     sizing, prediction, similar, deltas = analyse_proposal(analysis, build, k)
     return CheckResult(build, sizing, prediction, deltas, similar)
 
 
-def _recorded(builds, path: Path) -> Build | None:
-    """The shop's build loaded from `path`, if it is one (same file name, same real file)."""
-    target = None
-    for build in builds:
-        if Path(build.path).name == path.name:
-            target = target or path.resolve()
-            if Path(build.path).resolve() == target:
-                return build
+def _recorded(analysis, path: Path) -> Build | None:
+    """The shop's build loaded from `path`, if it is one (records are named by their id)."""
+    build = analysis.builds.get(path.stem)
+    if build is not None and Path(build.path).resolve() == path.resolve():
+        return build
     return None
 
 
