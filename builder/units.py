@@ -66,13 +66,11 @@ _QUANTITY_RE = re.compile(
     r")\s*(?P<unit>(?:.*\S)?)\s*"  # greedy up to the last non-space: linear time
 )
 _MAX_UNIT_CHARS = 40
-_MAX_TEXT_CHARS = 60  # `0.31 mL/m/MPa` is 13; a cap keeps parsing and the memo small
+_MAX_TEXT_CHARS = 60  # `0.31 mL/m/MPa` is 13; a cap keeps parsing short
 _UNIT_RE = re.compile(r"[%°]|[^\W\d_][^\s]*(?: [^\s]+)*")  # starts with a letter, %, or °
 _BARE_NUMBER_RE = re.compile(r"(?<![\^*\d.-])\d")  # digits only as exponents: in^2, m**3
 
 _units: dict[str, tuple[float, str] | str] = dict(SEEDED_UNITS)  # str value: why unusable
-_parsed: dict[tuple[str, str], float] = {}  # (text, dimension) -> SI, bounded memo
-_MAX_PARSED = 4096
 _registry = None
 
 
@@ -90,13 +88,7 @@ def parse_quantity(text: object, dimension: str, *, signed: bool = False) -> flo
         if len(text) > _MAX_TEXT_CHARS:
             raise QuantityError(f"expected {_expected(dimension)}; found {len(text)} characters "
                                 f"starting {text[:20]!r}, too long for a quantity")
-        key = (text, dimension)
-        value = _parsed.get(key)
-        if value is None:
-            value = _parse_text(text, dimension)
-            if len(_parsed) >= _MAX_PARSED:
-                _parsed.clear()
-            _parsed[key] = value
+        value = _parse_text(text, dimension)
         if value < 0 and not signed:
             raise QuantityError(f"expected {_noun(dimension)} of zero or more; found {text!r}")
         return value
@@ -220,27 +212,24 @@ def _describe(value: object) -> str:
     return f"{type(value).__name__} {value!r}"
 
 
-# Display: dimension -> {system: (unit label, SI factor, most decimals shown)}
-_DISPLAY: dict[str, dict[str, tuple[str, float, int]]] = {
-    "length": {"imperial": ("in", INCH, 3), "metric": ("mm", 1e-3, 1)},
-    "area": {"imperial": ("in^2", INCH**2, 3), "metric": ("mm^2", 1e-6, 1)},
-    "force": {"imperial": ("lbf", POUND_FORCE, 1), "metric": ("N", 1.0, 1)},
-    "pressure": {"imperial": ("psi", _PSI, 0), "metric": ("kPa", 1e3, 0)},
-    "volume": {"imperial": ("in^3", INCH**3, 3), "metric": ("mL", 1e-6, 2)},
-    "angle": {"imperial": ("deg", math.pi / 180, 1), "metric": ("deg", math.pi / 180, 1)},
-    "hose_expansion": {
-        "imperial": ("mL/m/MPa", 1e-12, 3),
-        "metric": ("mL/m/MPa", 1e-12, 3),
-    },
-    "fraction": {"imperial": ("%", 1e-2, 1), "metric": ("%", 1e-2, 1)},
+# Display: dimension -> {system: (unit label, a SEEDED_UNITS key; most decimals shown)}
+_DISPLAY: dict[str, dict[str, tuple[str, int]]] = {
+    "length": {"imperial": ("in", 3), "metric": ("mm", 1)},
+    "area": {"imperial": ("in^2", 3), "metric": ("mm^2", 1)},
+    "force": {"imperial": ("lbf", 1), "metric": ("N", 1)},
+    "pressure": {"imperial": ("psi", 0), "metric": ("kPa", 0)},
+    "volume": {"imperial": ("in^3", 3), "metric": ("mL", 2)},
+    "angle": {"imperial": ("deg", 1), "metric": ("deg", 1)},
+    "hose_expansion": {"imperial": ("mL/m/MPa", 3), "metric": ("mL/m/MPa", 3)},
+    "fraction": {"imperial": ("%", 1), "metric": ("%", 1)},
 }
 SYSTEMS = ("imperial", "metric")
 
 
 def show_one(value_si: float, dimension: str, system: str) -> str:
     """One system only: show_one(0.022225, "length", "imperial") -> "0.875 in"."""
-    label, factor, most_decimals = _DISPLAY[dimension][system]
-    return f"{_number(value_si / factor, most_decimals)} {label}"
+    label, most_decimals = _DISPLAY[dimension][system]
+    return f"{_number(value_si / SEEDED_UNITS[label][0], most_decimals)} {label}"
 
 
 def show(value_si: float, dimension: str, primary: str = "imperial") -> str:

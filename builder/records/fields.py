@@ -14,7 +14,7 @@ import re
 
 from builder import model
 from builder.problems import Problem
-from builder.records._schema import dotted, quantity_message, quantity_patterns
+from builder.records._schema import dotted, quantity_message, quantity_patterns, schema
 from builder.records._yaml import Located, NeedsCare
 from builder.units import QuantityError, check_range, parse_quantity, show
 
@@ -63,7 +63,7 @@ _FORMS = {
                                         f"signed_{dimension}" if low < 0 else dimension]).search
     for key, (dimension, low, high) in PLAUSIBLE.items()
 }
-_accepted: dict[tuple[str, str], float] = {}  # (text, PLAUSIBLE key) -> SI, bounded memo
+_accepted: dict[tuple[str, str], float] = {}  # (text, PLAUSIBLE key) -> SI: the one bounded memo of values
 _MAX_ACCEPTED = 16_384
 
 
@@ -116,21 +116,21 @@ SECTION_CLASS = {
     "gearbox": model.Gearbox, "clutch": model.Clutch, "fork": model.Fork, "master": model.Master,
     "slave": model.Slave, "line": model.Line, "pedal": model.Pedal, "measured": model.Measured,
 }
-_CLASS_FIELDS = {name: tuple(f.name for f in dataclasses.fields(cls)) for name, cls in SECTION_CLASS.items()}
-_FIELDS_OF_CLASS = {SECTION_CLASS[name]: names for name, names in _CLASS_FIELDS.items()}
+_CLASS_FIELDS = {cls: tuple(f.name for f in dataclasses.fields(cls)) for cls in SECTION_CLASS.values()}
 CATALOGUE_KIND = {"gearbox": "gearboxes", "clutch": "clutches", "master": "masters", "slave": "slaves",
                   "pedal": "pedals"}
 SECTION_OF_KIND = {kind: section for section, kind in CATALOGUE_KIND.items()}
-_REQUIRED = {
-    "gearbox": ("family", "fork_tip_moves"),
-    "clutch": ("release_load", "release_travel", "clearance"),
-    "fork": ("pivot_to_slave", "pivot_to_bearing"),
-    "master": ("bore", "stroke"),
-    "slave": ("kind", "stroke"),
-    "line": ("length", "hose", "fluid"),
-    "pedal": ("pad_travel",),
-    "measured": (),
-}
+
+
+def _required(section: str) -> tuple[str, ...]:
+    """Keys a section written out in full needs, as the build schema says: its `required`, or
+    those of its anyOf branch other than {part} (the either-or keys are make_section's)."""
+    node = schema("build")["properties"][section]
+    inline = [branch for branch in node.get("anyOf", ()) if branch["required"] != ["part"]]
+    return tuple((inline[0] if inline else node).get("required", ()))
+
+
+_REQUIRED = {section: _required(section) for section in SECTION_FIELDS}
 _ALTERNATIVES = {"bore": "piston_area", "piston_area": "bore"}  # a slave gives one of the two
 _LAYOUT_POINTS = ("pivot", "pad", "clevis", "pushrod_seat")
 _DISTINCT_POINTS = (("pivot", "pad"), ("pivot", "clevis"), ("clevis", "pushrod_seat"))
@@ -243,7 +243,7 @@ def section_fields(section: object) -> dict:
     """The given (not None) fields of a resolved section, without `part`: used for merging."""
     return {
         name: value
-        for name in _FIELDS_OF_CLASS[type(section)]
+        for name in _CLASS_FIELDS[type(section)]
         if name != "part" and (value := getattr(section, name)) is not None
     }
 
@@ -273,10 +273,11 @@ def make_section(name: str, fields: dict, report: Reporter, where: tuple, part: 
     if missing or (None in fields.values()
                    and any(value is None for key, value in fields.items() if SECTION_FIELDS[name][key] != TEXT)):
         return None
-    values = {key: fields.get(key) for key in _CLASS_FIELDS[name]}
+    cls = SECTION_CLASS[name]
+    values = {key: fields.get(key) for key in _CLASS_FIELDS[cls]}
     if "part" in values:
         values["part"] = part
-    return SECTION_CLASS[name](**values)
+    return cls(**values)
 
 
 def _load_curve(raw: list, report: Reporter, where: tuple) -> tuple | None:
