@@ -6,7 +6,9 @@ value), checks aliases and duplicates, and returns located problems instead of r
 """
 from __future__ import annotations
 
+import errno
 import re
+import stat
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -24,6 +26,7 @@ _COMPACT_RUN = re.compile(r"(?:[-?][ \t]+){32}")  # "- - - - ..." nests one leve
 # Screens every file before _COMPACT_RUN: a run holds a "-" marker pair unless all its markers
 # are "?", and a literal first character makes the search fast.
 _DASH_PAIR = re.compile(r"-[ \t]+[-?][ \t]")
+_MISSING = (errno.ENOENT, errno.ENOTDIR, errno.ELOOP)  # what Path.exists() calls absent
 _TIMESTAMP = "tag:yaml.org,2002:timestamp"
 _MERGE = "tag:yaml.org,2002:merge"
 
@@ -106,14 +109,16 @@ class Located:
 def read_text(path: Path) -> tuple[str | None, tuple[int, int, str] | None]:
     """The file's text, or (None, (line, col, message)) for a file we will not parse."""
     try:
-        if not path.is_file():
-            return None, (0, 0, "not a regular file" if path.exists() else "no such file")
-        size = path.stat().st_size
-        if size > MAX_BYTES:
-            return None, (0, 0, f"file is {size} bytes; records are limited to {MAX_BYTES} bytes")
+        info = path.stat()  # once per file: kind and size
+        if not stat.S_ISREG(info.st_mode):
+            return None, (0, 0, "not a regular file")
+        if info.st_size > MAX_BYTES:
+            return None, (0, 0, f"file is {info.st_size} bytes; records are limited to {MAX_BYTES} bytes")
         with path.open("rb") as handle:
             raw = handle.read(MAX_BYTES + 1)  # the file may have grown since stat
     except OSError as error:
+        if error.errno in _MISSING:
+            return None, (0, 0, "no such file")
         return None, (0, 0, f"cannot read: {error.strerror or error}")
     if len(raw) > MAX_BYTES:
         return None, (0, 0, f"file is over {MAX_BYTES} bytes; records are limited to {MAX_BYTES} bytes")
