@@ -149,7 +149,7 @@ def _check_verdicts(name: str, documents: list[dict], convert) -> int:
 
 def test_fast_path_refuses_what_the_reference_refuses_in_builds():
     catalogue = load_catalogue(REPO / "records")
-    convert = _build_converter(catalogue, None, "doc")
+    convert = _build_converter(catalogue, None)
     demo = _demo_documents("builds")
     points = [("pedal", "layout", point, axis) for point in ("pivot", "pad", "clevis", "pushrod_seat") for axis in (0, 1)]
     curve = [("clutch", "load_curve", index, axis) for index in (0, 1) for axis in (0, 1)]

@@ -165,7 +165,7 @@ def _find_part(catalogue: dict, section: str, part_id: str, report: f.Reporter, 
     return None
 
 
-def _build_converter(catalogue: dict, stem: str | None, shown: str) -> Callable[[dict, f.Reporter], model.Build | None]:
+def _build_converter(catalogue: dict, stem: str | None) -> Callable[[dict, f.Reporter], model.Build | None]:
     """Converts one build; `stem` is the file name the id must equal (None outside builds/)."""
 
     def convert(data: dict, report: f.Reporter) -> model.Build | None:
@@ -181,7 +181,7 @@ def _build_converter(catalogue: dict, stem: str | None, shown: str) -> Callable[
         return model.Build(
             id=build_id, date=when, status=data["status"], technician=f.text(data.get("technician")),
             vehicle=f.text(data.get("vehicle")), outcome=f.text(data.get("outcome")),
-            notes=f.text(data.get("notes")), path=shown, **sections,
+            notes=f.text(data.get("notes")), path=report.path, **sections,
         )
 
     return convert
@@ -236,7 +236,7 @@ def _inside(path: Path, folder: Path) -> bool:
 
 def _load_build(path: Path, catalogue: dict, in_builds: bool) -> tuple[model.Build | None, list[Problem]]:
     """`in_builds`: the file sits under records/builds/, so its id must equal its name."""
-    return _load(path, "build", _build_converter(catalogue, path.stem if in_builds else None, str(path)))
+    return _load(path, "build", _build_converter(catalogue, path.stem if in_builds else None))
 
 
 def load_build_file(path: str | os.PathLike, shop: model.Shop) -> model.Build:
@@ -302,16 +302,21 @@ def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress |
     return builds, problems + _duplicate_ids(root / "builds", inside_builds, listing)
 
 
+def _whole(root: Path, progress: Progress | None) -> tuple[model.ShopRules | None, dict, list[model.Build], list[Problem]]:
+    """Rules, catalogue, every build under root/builds/** and every problem in them."""
+    rules, problems = _rules(root)
+    catalogue, found = _catalogue(root)
+    builds, found_in_builds = _builds(root, catalogue, _yaml_files(root / "builds"), progress)
+    return rules, catalogue, builds, problems + found + found_in_builds
+
+
 def load_shop(records_dir: str | os.PathLike, progress: Progress | None = None) -> model.Shop:
     """Rules, catalogue and every build under records/builds/**; InputError with every problem.
 
     `progress(done, total)` is called after each build file.
     """
     root = Path(records_dir)
-    rules, problems = _rules(root)
-    catalogue, found = _catalogue(root)
-    builds, found_in_builds = _builds(root, catalogue, _yaml_files(root / "builds"), progress)
-    problems += found + found_in_builds
+    rules, catalogue, builds, problems = _whole(root, progress)
     if problems:
         raise InputError(problems)
     return model.Shop(root=str(root), rules=rules, parts=catalogue, builds=tuple(sorted(builds, key=lambda b: b.id)))
@@ -332,35 +337,36 @@ def validate_and_load(records_dir: str | os.PathLike, paths: Iterable[str | os.P
     """As validate_paths, also giving the shop rules (None when unusable) and every build
     among the paths that loaded, so a caller can size them without loading them again."""
     root = Path(records_dir)
-    rules = None
-    paths = list(paths)
+    paths = [Path(given) for given in paths]
+    if paths:
+        rules, builds, problems = _given(root, paths, progress)
+    else:  # the whole folder: where each file sits is known without resolving it
+        rules, _, builds, problems = _whole(root, progress)
+    return rules, builds, sorted(set(problems), key=lambda p: (p.path, p.line, p.col, p.field))
+
+
+def _given(root: Path, paths: list[Path], progress: Progress | None
+           ) -> tuple[model.ShopRules | None, list[model.Build], list[Problem]]:
+    """Rules, the builds among `paths` (files or folders) and the problems in those paths."""
     targets: list[Path] = []
     problems: list[Problem] = []
-    for given in map(Path, paths):
+    for given in paths:
         if given.is_dir():
             targets += _yaml_files(given)
         elif given.exists():
             targets.append(given)
         else:
             problems.append(Problem(str(given), 0, 0, "file", "no such file or folder"))
-    if not paths:  # the whole folder: where each file sits is known without resolving it
-        rules, found = _rules(root)
+    real = {path: path.resolve() for path in targets}  # each path resolved once
+    shop_file, parts_dir, builds_dir = ((root / name).resolve() for name in ("shop.yaml", "parts", "builds"))
+    rules, found = _rules(root)
+    if shop_file in real.values():
         problems += found
-        catalogue, found = _catalogue(root)
+    catalogue, found = _catalogue(root)
+    in_parts = {path for path in targets if real[path].is_relative_to(parts_dir)}
+    build_paths = [path for path in targets if real[path] != shop_file and path not in in_parts]
+    if found and (build_paths or in_parts):
         problems += found
-        build_paths, in_builds = _yaml_files(root / "builds"), None
-    else:
-        real = {path: path.resolve() for path in targets}  # each path resolved once
-        shop_file, parts_dir, builds_dir = ((root / name).resolve() for name in ("shop.yaml", "parts", "builds"))
-        rules, found = _rules(root)
-        if shop_file in real.values():
-            problems += found
-        catalogue, found = _catalogue(root)
-        build_paths = [path for path in targets
-                       if real[path] != shop_file and not real[path].is_relative_to(parts_dir)]
-        if found and (build_paths or any(real[path].is_relative_to(parts_dir) for path in targets)):
-            problems += found
-        in_builds = {path for path in build_paths if real[path].is_relative_to(builds_dir)}
+    in_builds = {path for path in build_paths if real[path].is_relative_to(builds_dir)}
     builds, found = _builds(root, catalogue, build_paths, progress, in_builds)
-    problems += found
-    return rules, builds, sorted(set(problems), key=lambda p: (p.path, p.line, p.col, p.field))
+    return rules, builds, problems + found
