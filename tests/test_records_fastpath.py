@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from builder.records import fields, load_catalogue
-from builder.records._schema import reference_validator, schema_problems
+from builder.records._schema import quantity_message, reference_validator, schema_problems
 from builder.records._yaml import Located, NeedsCare, careful_load, fast_load
 
 REPO = Path(__file__).resolve().parents[1]
@@ -40,6 +40,13 @@ def test_remembered_quantities_keep_the_schema_form(text):
     ((_, _, _, said),) = schema_problems("parts", document)
     assert report.problems[0].message == said + fields.accepted("master.bore")
 
+
+
+@pytest.mark.parametrize("text, dimension, example", [("+410 lbf", "force", "e.g. 410 lbf or 1.9 kN"),
+                                                      ("+3 mm", "length", "e.g. 7/8 in or 22.2 mm")])
+def test_refused_form_is_explained_with_an_example_of_its_own_dimension(text, dimension, example):
+    # The number reads, the schema's pattern refuses the sign: the hint shows the field's own units.
+    assert example in quantity_message(text, dimension, False)
 
 @pytest.mark.parametrize("marker", ["- ", "? ", "-\t", "?\t"])
 def test_deep_compact_runs_are_caught_whatever_the_marker(marker):

@@ -11,7 +11,7 @@ import functools
 import json
 
 from builder.resources import data_dir
-from builder.units import QuantityError, parse_quantity
+from builder.units import DIMENSIONS, QuantityError, parse_quantity
 
 SCHEMA_DIR = data_dir("schema")
 _QUANTITY_DEFS = ("length", "signed_length", "area", "force", "pressure", "angle", "hose_expansion", "fraction")
@@ -136,11 +136,14 @@ def _quantity_dimension(name: str, sub: dict) -> tuple[str, bool] | None:
 
 
 def quantity_message(value: object, dimension: str, signed: bool) -> str:
+    """Why `value` is no `dimension` quantity: parse_quantity's reason, or for a form it reads
+    but the schema's pattern refuses (e.g. "+3 mm") the expected form."""
     try:
         parse_quantity(value, dimension, signed=signed)
     except QuantityError as error:
         return str(error)
-    return f"expected {dimension} with its unit after the number, e.g. 22.2 mm; found {value!r}"
+    example = DIMENSIONS[dimension][1]
+    return f"expected {dimension.replace('_', ' ')} with its unit after the number, e.g. {example}; found {value!r}"
 
 
 def _message(kind: str, value: object, sub: dict, error) -> str:
