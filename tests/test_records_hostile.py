@@ -12,6 +12,7 @@ from pathlib import Path
 import pytest
 
 from builder.records import validate_paths
+from test_hostile_cli import laughs  # the CWE-776 expansion, shared with the command-line tests
 
 
 def _problems(tmp_path: Path, content: bytes, name: str = "QA-0101.yaml"):
@@ -22,14 +23,6 @@ def _problems(tmp_path: Path, content: bytes, name: str = "QA-0101.yaml"):
     problems = validate_paths(tmp_path / "records", [path])
     assert problems and all(p.path == str(path) for p in problems), problems
     return problems
-
-
-def _laughs(levels: int = 9, width: int = 10) -> str:
-    text = "a: &a [" + ",".join(["lol"] * width) + "]\n"
-    for level in range(1, levels):
-        name, previous = chr(ord("a") + level), chr(ord("a") + level - 1)
-        text += f"{name}: &{name} [" + ",".join([f"*{previous}"] * width) + "]\n"
-    return text
 
 
 CASES = [
@@ -43,7 +36,7 @@ CASES = [
     ("unclosed", b"id: [QA-0101\n", (2, 1), "YAML"),
     ("two documents", b"id: A\n---\nid: B\n", (2, 1), "single document"),
     ("python tag", b'id: !!python/object/apply:os.system ["true"]\n', (1, 5), "could not determine a constructor"),
-    ("alias bomb", _laughs().encode(), None, "expands to more than 10000 values"),
+    ("alias bomb", laughs(), None, "expands to more than 10000 values"),
     ("many aliases", ("a: &a x\nb: [" + ",".join(["*a"] * 100) + "]\n").encode(), None, "more than 64 aliases"),
     ("self alias", b"a: &a [*a]\n", (1, 4), "contains it"),
     ("deep flow", b"[" * 100_000 + b"]" * 100_000, (1, 65), "nesting is deeper than 64"),
