@@ -423,3 +423,12 @@ def test_cli_validate_end_to_end(records):
     assert any(": line.hose: expected one of" in line for line in lines)
     ok = CliRunner().invoke(main, ["--records", str(records), "validate", str(records / "builds" / "QA-0102.yaml")])
     assert ok.exit_code == 0, ok.output
+
+
+def test_a_repeated_section_is_located_where_its_kept_value_is(records):
+    # YAML mappings keep the last of a repeated key (PyYAML's constructor): a problem in the
+    # kept section must point at that section, not at the one the data no longer holds.
+    text = BUILD + "measured:\n  pedal_effort: 9000 lbf\n"
+    problems = {p.field: p for p in _problems(records, text)}
+    assert "duplicate key 'measured'" in problems["measured"].message
+    assert problems["measured.pedal_effort"].line == _line_of(text, "pedal_effort: 9000 lbf")

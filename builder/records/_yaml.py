@@ -261,6 +261,7 @@ def _index(root, doc: Located) -> None:
             stack.extend((path + (index,), child) for index, child in enumerate(node.value))
         elif isinstance(node, yaml.MappingNode):
             first_seen: dict[str, int] = {}
+            kept: dict[str, tuple] = {}  # the data keeps a repeated key's last value: so do we
             for key_node, value_node in node.value:
                 if key_node.tag == _MERGE or not isinstance(key_node, yaml.ScalarNode):
                     continue
@@ -268,9 +269,11 @@ def _index(root, doc: Located) -> None:
                 line, col = _mark(key_node)
                 if name in first_seen:
                     doc.problems.append((path + (name,), line, col, f"duplicate key {name!r} (first at line {first_seen[name]})"))
-                    continue
-                first_seen[name] = line
-                doc.keys[path + (name,)] = (line, col)
+                else:
+                    first_seen[name] = line
+                kept[name] = ((line, col), value_node)
+            for name, (key_at, value_node) in kept.items():
+                doc.keys[path + (name,)] = key_at
                 if not isinstance(value_node, yaml.ScalarNode):  # a section is shown at its key
-                    doc.values[path + (name,)] = (line, col)
+                    doc.values[path + (name,)] = key_at
                 stack.append((path + (name,), value_node))
