@@ -33,8 +33,19 @@ class Context:
             from builder.records import load_shop
 
             shop = load_shop(self.records, progress=progress_reporter("loading"))
-            self._analysis = analyse(shop)
+            self._analysis = _sized(lambda: analyse(shop))
         return self._analysis
+
+
+def _sized(action):
+    """Run `action`; builds whose pedal cannot push their master become located problems."""
+    from builder.history import UnsizableBuilds
+    from builder.located import unsizable_problems
+
+    try:
+        return action()
+    except UnsizableBuilds as error:
+        raise InputError(unsizable_problems(error.failures)) from None
 
 
 def fail(problems: list[Problem]) -> None:
@@ -90,13 +101,14 @@ def _run(action):
 @click.pass_obj
 def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
     """Check the shop rules, parts catalogue and build records (or only PATHS)."""
-    from builder.history import geometry_problems
+    from builder.history import unsizable
+    from builder.located import unsizable_problems
     from builder.records import validate_and_load
 
     rules, builds, problems = validate_and_load(ctx.records, list(paths),
                                                 progress=progress_reporter("validating"))
     if rules is not None:  # sizing finds pedal layouts that cannot push their master
-        problems += geometry_problems(builds, rules)
+        problems += unsizable_problems(unsizable(builds, rules))
     if problems:
         fail(problems)
     click.echo(f"All records valid ({len(builds)} builds).")
@@ -110,16 +122,17 @@ def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
 @click.pass_obj
 def check(ctx: Context, file: Path, as_json: bool, k: int) -> None:
     """Size one build or proposal FILE and compare it with the shop's history."""
-    from builder import sizing_report
+    from builder import check as checking
 
     analysis = _run(ctx.analysis)
-    result = _run(lambda: sizing_report.check_file(analysis, file, k))
+    result = _run(lambda: _sized(lambda: checking.check_file(analysis, file, k)))
+    primary = analysis.shop.rules.display_units
     if as_json:
         import json
 
-        click.echo(json.dumps(sizing_report.contract(result), indent=2, ensure_ascii=True))
+        click.echo(json.dumps(checking.contract(result, primary), indent=2, ensure_ascii=True))
     else:
-        echo_safe(sizing_report.describe(result, analysis.shop.rules.display_units))
+        echo_safe(checking.describe(result, primary))
         if any(flag.severity == "fail" for flag in result.sizing.flags):
             click.echo("")
             click.echo(CAUTION)
@@ -131,21 +144,21 @@ def check(ctx: Context, file: Path, as_json: bool, k: int) -> None:
 @click.pass_obj
 def report(ctx: Context, fmt: str) -> None:
     """One row per build: ratios, computed and measured effort, margin, flags."""
-    from builder import tables
+    from builder import report as reporting
 
     analysis = _run(ctx.analysis)
-    rows = tables.report_rows(analysis)
-    echo_safe(tables.render(rows, fmt, tables.REPORT_TABLE_COLUMNS), nl=False)
+    rows = reporting.report_rows(analysis)
+    echo_safe(reporting.render(rows, fmt, reporting.REPORT_TABLE_COLUMNS), nl=False)
 
 
 @main.command()
 @click.pass_obj
 def calibration(ctx: Context) -> None:
     """Apparent efficiency and travel loss per gearbox family, with leave-one-out error."""
-    from builder import tables
+    from builder import report as reporting
 
     analysis = _run(ctx.analysis)
-    echo_safe(tables.render(tables.calibration_rows(analysis), "table"), nl=False)
+    echo_safe(reporting.render(reporting.calibration_rows(analysis), "table"), nl=False)
 
 
 @main.command()

@@ -82,6 +82,12 @@ class Slave:
         assert self.bore is not None
         return circle_area(self.bore)
 
+    @property
+    def equivalent_bore(self) -> float:
+        """The bore, or for a slave that gives its piston area the bore of a round piston
+        of that area, D = sqrt(4 A / pi) (m)."""
+        return self.bore if self.bore is not None else math.sqrt(4.0 * self.piston_area / math.pi)
+
 
 @dataclass(frozen=True, slots=True)
 class Line:
@@ -161,8 +167,8 @@ class ShopRules:
     default_efficiency: float  # fraction, used until history calibrates it
     hose_expansion: dict[str, float]  # per hose kind: m^3 per m of hose per Pa (= m^2/Pa)
     fluid_bulk_modulus: float  # Pa
-    line_bore: float = 3.2e-3  # m, inner diameter of the line, for the fluid volume
-    max_pushrod_angle: float = math.radians(5.0)  # rad, flag past this (common practice)
+    line_bore: float  # m, inner diameter of the line, for the fluid volume
+    max_pushrod_angle: float  # rad, flag the pushrod past this angle to the bore axis
 
 
 @dataclass(frozen=True, slots=True)

@@ -1,4 +1,4 @@
-"""Quantities with units: parse record strings to SI floats, and show SI floats to people.
+"""Quantities with units: parse record strings to SI floats.
 
 The only module that touches pint. The magnitude (`7/8`, `1-1/8`, `1 1/8`, `0.875`, `1e-3`)
 is parsed here; pint resolves each unit string once. Common units are pre-seeded with exact
@@ -75,7 +75,26 @@ _registry = None
 
 
 class QuantityError(ValueError):
-    """A value that is not a usable quantity of the expected dimension."""
+    """A value that is not a usable quantity of the expected dimension.
+
+    Carries why (a reason code), the dimension expected and what was found, so callers and
+    builder.presentation never read message text. Reasons: too-long, no-number, no-unit,
+    divides-by-zero, improper-fraction, not-finite, negative, wrong-dimension, not-a-unit,
+    unknown-unit, unit-too-long, not-text, form, out-of-range.
+    """
+
+    def __init__(self, reason: str, dimension: str, found: str, *, unit: str | None = None,
+                 found_dimension: str | None = None, low: float | None = None,
+                 high: float | None = None, hint: str | None = None):
+        self.reason, self.dimension, self.found = reason, dimension, found
+        self.unit, self.found_dimension, self.low, self.high = unit, found_dimension, low, high
+        self.hint = hint
+        super().__init__(reason, dimension, found)
+
+    def __str__(self) -> str:
+        from builder.presentation import quantity_message
+
+        return quantity_message(self)
 
 
 def parse_quantity(text: object, dimension: str, *, signed: bool = False) -> float:
@@ -83,42 +102,41 @@ def parse_quantity(text: object, dimension: str, *, signed: bool = False) -> flo
 
     `dimension` is a key of DIMENSIONS. Negative values are refused unless `signed`.
     Raises QuantityError naming the expected dimension and what was found.
+
+    >>> parse_quantity("1-1/8 in", "length")
+    0.028575
     """
     if type(text) is str:
         if len(text) > _MAX_TEXT_CHARS:
-            raise QuantityError(f"expected {_expected(dimension)}; found {len(text)} characters "
-                                f"starting {text[:20]!r}, too long for a quantity")
+            raise QuantityError("too-long", dimension, text)
         value = _parse_text(text, dimension)
         if value < 0 and not signed:
-            raise QuantityError(f"expected {_noun(dimension)} of zero or more; found {text!r}")
+            raise QuantityError("negative", dimension, repr(text))
         return value
     if dimension == "fraction" and isinstance(text, (int, float)) and not isinstance(text, bool):
         return _finite(float(text), repr(text), dimension, signed)
-    raise QuantityError(f"expected {_expected(dimension)}; found {_describe(text)}")
+    raise QuantityError("not-text", dimension, describe(text))
 
 
 def check_range(value: float, low: float, high: float, dimension: str, text: object) -> None:
-    """Raise QuantityError unless low <= value <= high (SI), showing the range in both systems."""
+    """Raise QuantityError (out-of-range, with the bounds) unless low <= value <= high (SI)."""
     if not low <= value <= high:
-        raise QuantityError(
-            f"{text} is outside the plausible range {show(low, dimension)} to "
-            f"{show(high, dimension)} for this field"
-        )
+        raise QuantityError("out-of-range", dimension, str(text), low=low, high=high)
 
 
 def _parse_text(text: str, dimension: str) -> float:
     match = _QUANTITY_RE.fullmatch(text)
     if match is None:
-        raise QuantityError(f"expected {_expected(dimension)}; {text!r} does not start with a number")
+        raise QuantityError("no-number", dimension, text)
     magnitude = _magnitude(match, text, dimension)
     unit = match["unit"]
     if not unit:
         if dimension == "fraction":
             return _finite(magnitude, text, dimension, True)
-        raise QuantityError(f"expected {_expected(dimension)}; found {text!r} with no unit")
+        raise QuantityError("no-unit", dimension, text)
     factor, found = _resolve_unit(unit, text, dimension)
     if found != dimension:
-        raise QuantityError(f"expected {_expected(dimension)}; found {text!r}, which is {_noun(found)}")
+        raise QuantityError("wrong-dimension", dimension, text, found_dimension=found)
     return _finite(magnitude * factor, text, dimension, True)
 
 
@@ -129,17 +147,17 @@ def _magnitude(match: re.Match, text: str, dimension: str) -> float:
     whole = float(match["whole"] or 0)
     num, den = (match["num"], match["den"]) if match["den"] else (match["fnum"], match["fden"])
     if int(den) == 0:
-        raise QuantityError(f"expected {_expected(dimension)}; {text!r} divides by zero")
+        raise QuantityError("divides-by-zero", dimension, text)
     if match["whole"] is not None and int(num) >= int(den):
-        raise QuantityError(f"expected {_expected(dimension)}; {text!r} is not a proper mixed fraction")
+        raise QuantityError("improper-fraction", dimension, text)
     return sign * (whole + int(num) / int(den))
 
 
 def _finite(value: float, text: str, dimension: str, signed: bool) -> float:
     if not math.isfinite(value):
-        raise QuantityError(f"expected {_expected(dimension)}; {text} is not a finite number")
+        raise QuantityError("not-finite", dimension, text)
     if value < 0 and not signed:
-        raise QuantityError(f"expected {_noun(dimension)} of zero or more; found {text}")
+        raise QuantityError("negative", dimension, text)
     return value
 
 
@@ -147,20 +165,21 @@ def _resolve_unit(unit: str, text: str, dimension: str) -> tuple[float, str]:
     known = _units.get(unit)
     if known is None:
         if _UNIT_RE.fullmatch(unit) is None or _BARE_NUMBER_RE.search(unit):
-            known = f"{unit!r} is not a unit"
+            known = "not-a-unit"
         else:
             known = _ask_pint(unit)
         _units[unit] = known
     if isinstance(known, str):
-        raise QuantityError(f"expected {_expected(dimension)}; {known} in {text!r}")
+        raise QuantityError(known, dimension, text, unit=unit)
     return known
 
 
 def _ask_pint(unit: str) -> tuple[float, str] | str:
-    """Resolve one unit string with pint: (SI factor, our dimension) or why it is unusable."""
+    """Resolve one unit string with pint: (SI factor, our dimension), or the reason code why
+    it is unusable. A dimension we do not use comes back as pint's own, e.g. "[mass]"."""
     global _registry
     if len(unit) > _MAX_UNIT_CHARS:
-        return f"unit {unit[:_MAX_UNIT_CHARS]!r}... is too long"
+        return "unit-too-long"
     import pint  # slow (~0.3 s): only for unit strings not seeded above
 
     if _registry is None:
@@ -176,27 +195,18 @@ def _ask_pint(unit: str) -> tuple[float, str] | str:
                     continue
                 return factor, name
     except Exception:  # pint raises many kinds for a bad unit string
-        return f"unknown unit {unit!r}"
+        return "unknown-unit"
     if base.dimensionless and not _is_angle(_registry, unit):
         return factor, "fraction"
-    return factor, f"quantity of {base.dimensionality}"
+    return factor, str(base.dimensionality)
 
 
 def _is_angle(registry, unit: str) -> bool:
     return str(registry.get_root_units(unit)[1]) == "radian"
 
 
-def _noun(dimension: str) -> str:
-    """'length' -> 'a length', 'angle' -> 'an angle', 'hose_expansion' -> 'a hose expansion'."""
-    noun = dimension.replace("_", " ")
-    return f"an {noun}" if noun[0] in "aeiou" else f"a {noun}"
-
-
-def _expected(dimension: str) -> str:
-    return f"{_noun(dimension)} with its unit, e.g. {DIMENSIONS[dimension][1]}"
-
-
-def _describe(value: object) -> str:
+def describe(value: object) -> str:
+    """What a non-text value in a quantity field is, in plain words."""
     if value is None:
         return "nothing"
     if isinstance(value, bool):
@@ -210,43 +220,3 @@ def _describe(value: object) -> str:
     if isinstance(value, dict):
         return "a mapping"
     return f"{type(value).__name__} {value!r}"
-
-
-# Display: dimension -> {system: (unit label, a SEEDED_UNITS key; most decimals shown)}
-_DISPLAY: dict[str, dict[str, tuple[str, int]]] = {
-    "length": {"imperial": ("in", 3), "metric": ("mm", 1)},
-    "area": {"imperial": ("in^2", 3), "metric": ("mm^2", 1)},
-    "force": {"imperial": ("lbf", 1), "metric": ("N", 1)},
-    "pressure": {"imperial": ("psi", 0), "metric": ("kPa", 0)},
-    "volume": {"imperial": ("in^3", 3), "metric": ("mL", 2)},
-    "angle": {"imperial": ("deg", 1), "metric": ("deg", 1)},
-    "hose_expansion": {"imperial": ("mL/m/MPa", 3), "metric": ("mL/m/MPa", 3)},
-    "fraction": {"imperial": ("%", 1), "metric": ("%", 1)},
-}
-SYSTEMS = ("imperial", "metric")
-
-
-def show_one(value_si: float, dimension: str, system: str) -> str:
-    """One system only: show_one(0.022225, "length", "imperial") -> "0.875 in"."""
-    label, most_decimals = _DISPLAY[dimension][system]
-    return f"{_number(value_si / SEEDED_UNITS[label][0], most_decimals)} {label}"
-
-
-def show(value_si: float, dimension: str, primary: str = "imperial") -> str:
-    """Both systems, `primary` first: show(0.022225, "length") -> "0.875 in (22.2 mm)"."""
-    first = show_one(value_si, dimension, primary)
-    other = show_one(value_si, dimension, SYSTEMS[primary == "imperial"])
-    return first if other == first else f"{first} ({other})"
-
-
-def _number(value: float, most_decimals: int) -> str:
-    """Four significant figures, at most `most_decimals` decimals, no trailing zeros."""
-    if not math.isfinite(value):
-        return str(value)
-    if value == 0:
-        return "0"
-    decimals = max(0, min(most_decimals, 3 - math.floor(math.log10(abs(value)))))
-    text = f"{value:.{decimals}f}"
-    if "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return "0" if text in ("-0", "") else text

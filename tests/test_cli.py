@@ -68,7 +68,7 @@ def test_check_json_has_every_contract_key(path: Path):
         assert set(data[section]) >= keys, section
     assert data["id"] == path.stem
     for flag in data["flags"]:
-        assert set(flag) == {"code", "severity", "message"}
+        assert set(flag) == {"code", "severity", "message", "values"}
         assert flag["severity"] in ("warn", "fail")
     for item in data["similar"]:
         assert set(item) >= {"id", "distance", "differs", "measured_effort_N", "outcome"}

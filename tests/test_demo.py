@@ -1,7 +1,7 @@
 """The invented demo shop: regenerated exactly, big and varied enough, valid, loadable.
 
 Counts and ranges below are the team brief's requirements for the demo, not outside facts;
-the ranges themselves are "from memory" (see builder/demo.py). Outside references used:
+the ranges themselves are "from memory" (see builder/demo/). Outside references used:
 JSON Schema draft 2020-12 (the jsonschema library's Draft202012Validator), numpy's median.
 """
 from __future__ import annotations
@@ -17,6 +17,7 @@ import pytest
 import yaml
 
 from builder import demo
+from builder.demo import catalogue
 from builder.engine import size_build
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -30,7 +31,7 @@ GOOD = ("measured", "verified")
 @pytest.fixture(scope="module")
 def demo_shop():
     records, sizings = demo.make_demo()
-    return records, sizings, [demo.to_build(r) for r in records]
+    return records, sizings, [demo.load(r) for r in records]
 
 
 def _yaml_files(folder: Path = RECORDS) -> dict[str, bytes]:
@@ -109,7 +110,7 @@ def test_catalogue_counts_and_references(demo_shop):
 
 
 def test_demo_stays_in_realistic_ranges(demo_shop):
-    """Ranges from memory (typical hand-built conversions); see builder/demo.py."""
+    """Ranges from memory (typical hand-built conversions); see builder/demo/."""
     _, sizings, builds = demo_shop
     for b, s in zip(builds, sizings):
         assert 5 / 8 * INCH - 1e-9 <= b.master.bore <= 1 * INCH + 1e-9, b.id
@@ -140,7 +141,7 @@ def test_family_losses_are_recoverable(demo_shop):
     """Median of ideal/measured effort and measured/computed slave travel per family
     (numpy.median) lands within 3 % of the constants the generator used."""
     _, _, builds = demo_shop
-    rules = demo.shop_rules()
+    rules = demo.rules()
     efficiency, travel = {}, {}
     for b in builds:
         if b.status not in GOOD:
@@ -149,9 +150,9 @@ def test_family_losses_are_recoverable(demo_shop):
         efficiency.setdefault(b.gearbox.family, []).append(s.effort_ideal / b.measured.pedal_effort)
         travel.setdefault(b.gearbox.family, []).append(b.measured.slave_travel / s.slave_travel)
     for family, values in efficiency.items():
-        assert np.median(values) == pytest.approx(demo.FAMILY_EFFICIENCY[family], rel=0.03)
+        assert np.median(values) == pytest.approx(catalogue.FAMILY_EFFICIENCY[family], rel=0.03)
         assert np.median(travel[family]) == pytest.approx(
-            demo.FAMILY_TRAVEL_FACTOR[family], rel=0.03)
+            catalogue.FAMILY_TRAVEL_FACTOR[family], rel=0.03)
 
 
 def test_no_real_names_leak_into_free_text(demo_shop):
@@ -191,13 +192,12 @@ def test_every_demo_file_validates_against_its_schema():
 
 def test_loader_reads_the_demo_shop_as_generated(demo_shop):
     """builder.records.load_shop gives back exactly the builds and rules the generator sized."""
-    records_api = pytest.importorskip("builder.records")
-    if not hasattr(records_api, "load_shop"):
-        pytest.skip("builder.records.load_shop not written yet")
-    shop = records_api.load_shop(str(RECORDS))
+    from builder.records import load_shop
+
+    shop = load_shop(str(RECORDS))
     _, _, builds = demo_shop
-    assert shop.rules == demo.shop_rules()
+    assert shop.rules == demo.rules()
     assert {kind: sorted(parts) for kind, parts in shop.parts.items()} == {
         kind: sorted(e.id for e in entries) for kind, entries in demo.CATALOGUE.items()}
     loaded = {b.id: dataclasses.replace(b, path="") for b in shop.builds}
-    assert loaded == {b.id: b for b in builds}
+    assert loaded == {b.id: dataclasses.replace(b, path="") for b in builds}

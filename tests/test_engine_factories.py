@@ -37,6 +37,8 @@ def make_rules(**changes) -> ShopRules:
         default_efficiency=0.85,
         hose_expansion={"rubber": 3.0e-13, "braided_ptfe": 5.0e-14, "steel": 1.0e-15},
         fluid_bulk_modulus=1.5e9,
+        line_bore=3.2e-3,
+        max_pushrod_angle=math.radians(5.0),
     )
     if lossless:
         rules = dataclasses.replace(

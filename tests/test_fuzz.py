@@ -22,7 +22,7 @@ import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from builder import sizing_report
+from builder import check as checking
 from builder.history import analyse
 from builder.model import Build
 from builder.problems import InputError, Problem, terminal_safe
@@ -186,12 +186,12 @@ def check_never_raises(env: Env, content: bytes) -> None:
     """check on a proposal: InputError or a result that prints as strict JSON and plain text."""
     env.proposal.write_bytes(content)
     try:
-        result = sizing_report.check_file(env.analysis, env.proposal, 5)
+        result = checking.check_file(env.analysis, env.proposal, 5)
     except InputError as error:
         assert_located(error.problems, env.proposal)
         return
-    json.dumps(sizing_report.contract(result), allow_nan=False)
-    text = sizing_report.describe(result, "imperial")
+    json.dumps(checking.contract(result), allow_nan=False)
+    text = checking.describe(result, "imperial")
     assert all(ch in "\n\t" or ch >= " " for ch in terminal_safe(text))
 
 

@@ -6,11 +6,10 @@ import pytest
 
 from builder.engine import size_build
 from builder.engine.result import Flag
-from builder.history import analyse, analyse_proposal, calibrate
+from builder.history import UnsizableBuilds, analyse, analyse_proposal, calibrate
 from builder.history.analysis import judged_on_history
 from builder.history.calibration import Prediction
 from builder.model import Pedal, PedalLayout, Shop
-from builder.problems import InputError
 from test_engine_factories import make_rules
 from test_history_factories import INCH, make_build, make_sizing
 
@@ -83,7 +82,7 @@ def test_proposal_against_the_history():
     assert record.id not in [f.id for f in similar] and len(similar) == 10
 
 
-def test_impossible_pedal_layout_is_an_input_error():
+def test_impossible_pedal_layout_is_reported_with_the_engine_reason():
     build = make_build("HW-500")
     seat = (-0.008, -0.053)  # the pushrod seat on the clevis: a pushrod of no length
     layout = PedalLayout(pivot=(0.0, 0.0), pad=(-0.06, -0.285), clevis=seat, pushrod_seat=seat,
@@ -91,10 +90,10 @@ def test_impossible_pedal_layout_is_an_input_error():
     broken = dataclasses.replace(build, pedal=Pedal(None, None, 0.15, layout=layout),
                                  path="records/builds/HW-500.yaml")
     shop = Shop(root="records", rules=RULES, builds=(broken,))
-    with pytest.raises(InputError) as caught:
+    with pytest.raises(UnsizableBuilds) as caught:
         analyse(shop)
-    [problem] = caught.value.problems
-    assert (problem.path, problem.field) == ("records/builds/HW-500.yaml", "pedal.layout")
+    [(build, error)] = caught.value.failures
+    assert (build.id, error.reason) == ("HW-500", "points-coincide")
 
 
 def test_effort_band_is_judged_on_the_calibrated_effort():
@@ -103,17 +102,16 @@ def test_effort_band_is_judged_on_the_calibrated_effort():
     rules = make_rules(effort_band=(60.0, 140.0))
     sizing = dataclasses.replace(
         make_sizing("QX-001", effort_ideal=100.0, effort_predicted=150.0),
-        flags=(Flag("effort-high", "warn", "Predicted pedal effort is above the band."),
-               Flag("travel-short", "fail", "Bearing travel is short.")))
-    calibrated = Prediction(effort=100.0, interval=None, n_builds=12, basis="family", note=None)
+        flags=(Flag("effort-high", "warn"), Flag("travel-short", "fail")))
+    calibrated = Prediction(effort=100.0, interval=None, n_builds=12, basis=None)
     judged = judged_on_history(sizing, calibrated, rules)
     assert [f.code for f in judged.flags] == ["travel-short"]
     assert judged.effort_predicted == 150.0  # computed values are left as the engine gave them
-    heavy = Prediction(effort=160.0, interval=None, n_builds=12, basis="family", note=None)
+    heavy = Prediction(effort=160.0, interval=None, n_builds=12, basis=None)
     flagged = judged_on_history(sizing, heavy, rules)
     assert [f.code for f in flagged.flags] == ["travel-short", "effort-high"]
-    assert flagged.flags[1].message.startswith("Calibrated pedal effort")
-    unknown = Prediction(effort=None, interval=None, n_builds=1, basis="", note="not enough")
+    assert (flagged.flags[1].basis, flagged.flags[1].value("effort")) == ("calibrated", 160.0)
+    unknown = Prediction(effort=None, interval=None, n_builds=1, basis=None)
     assert judged_on_history(sizing, unknown, rules) is sizing
 
 
@@ -136,11 +134,12 @@ def test_travel_short_is_judged_on_the_smaller_margin_after_measured_losses():
     # bearing: 9 / 9.5 - 1 = -5.3 %, so the clutch would not release: the flag must fail.
     rules = make_rules()
     sizing = dataclasses.replace(
-        make_sizing("QX-001"), flags=(Flag("travel-short", "warn", "only 5 % over"),))
-    shorter = Prediction(effort=None, interval=None, n_builds=8, basis="family", note=None,
+        make_sizing("QX-001"), flags=(Flag("travel-short", "warn"),))
+    shorter = Prediction(effort=None, interval=None, n_builds=8, basis=None,
                          slave_travel=0.018, travel_margin=9.0 / 9.5 - 1.0)
     judged = judged_on_history(sizing, shorter, rules)
     assert [(f.code, f.severity) for f in judged.flags] == [("travel-short", "fail")]
-    assert judged.flags[0].message.startswith("After the shop's measured travel losses")
+    assert judged.flags[0].basis == "after_losses"
+    assert judged.flags[0].value("bearing") == pytest.approx(0.009)  # 18 mm / fork ratio 2
     longer = dataclasses.replace(shorter, slave_travel=0.021, travel_margin=10.5 / 9.5 - 1.0)
     assert judged_on_history(sizing, longer, rules) is sizing  # the engine's margin is smaller

@@ -184,12 +184,13 @@ def test_not_enough_history_below_three_builds():
     proposal = make_build("QX-900", measured=False)
     prediction = calibration.predict(proposal, make_sizing("QX-900"))
     assert prediction.effort is None and prediction.interval is None
-    assert prediction.note == "not enough history (2 builds)"
+    assert (prediction.basis, prediction.n_builds) == (None, 2)
     # three builds: a proposal is predicted, but each of them sees only the other two
     pairs = history({"QX-5": [0.80, 0.85, 0.90]})
     calibration = calibrate(pairs)
     assert calibration.predict(proposal, make_sizing("QX-900")).effort == pytest.approx(100 / 0.85)
-    assert calibration.predict(*pairs[0]).note == "not enough history (2 builds)"
+    alone = calibration.predict(*pairs[0])
+    assert (alone.effort, alone.n_builds) == (None, 2)
 
 
 def test_interval_from_family_residual_percentiles():
@@ -203,7 +204,7 @@ def test_interval_from_family_residual_percentiles():
     low, high = np.percentile(residuals, [10, 90])
     assert prediction.interval == pytest.approx(
         (prediction.effort * (1 + low), prediction.effort * (1 + high)))
-    assert "family" in prediction.basis and prediction.note is None
+    assert (prediction.basis.interval_source, prediction.basis.interval_count) == ("family", 7)
     # a build of the family leaves its own residual out of its interval
     build, sizing = pairs[2]
     mine = calibration.predict(build, sizing)
@@ -221,7 +222,7 @@ def test_thin_family_interval_comes_from_shop_wide_residuals():
     low, high = np.percentile(calibration.shop.residuals, [10, 90])  # numpy.percentile
     assert prediction.interval == pytest.approx(
         (prediction.effort * (1 + low), prediction.effort * (1 + high)))
-    assert "shop-wide" in prediction.basis
+    assert prediction.basis.interval_source == "shop-wide"
 
 
 def test_unknown_family_uses_shop_wide_value():
@@ -230,7 +231,7 @@ def test_unknown_family_uses_shop_wide_value():
     prediction = calibration.predict(proposal, make_sizing("ZZ-900"))
     assert prediction.effort == pytest.approx(100 / np.median([0.80, 0.85, 0.90, 0.82]))
     assert prediction.n_builds == 4
-    assert "no other ZZ-1 builds" in prediction.basis
+    assert (prediction.basis.source, prediction.basis.n_family) == ("shop-wide", 0)
 
 
 def test_calibrated_slave_travel_uses_the_travel_factor():
@@ -247,7 +248,7 @@ def test_empty_history():
     assert calibration.shop.n == 0 and calibration.shop.efficiency is None
     assert calibration.families == {}
     prediction = calibration.predict(make_build("QX-900", measured=False), make_sizing("QX-900"))
-    assert prediction.note == "not enough history (0 builds)"
+    assert (prediction.effort, prediction.n_builds, prediction.basis) == (None, 0, None)
 
 
 def test_prior_builds_follow_within_and_between_family_spread():

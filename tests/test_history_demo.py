@@ -1,6 +1,6 @@
 """The demo shop's history recovers the losses its generator put in.
 
-builder/demo.py documents the "true" per-family losses it spoiled the measurements with
+builder/demo/catalogue.py documents the "true" per-family losses it spoiled the measurements with
 (FAMILY_EFFICIENCY, FAMILY_TRAVEL_FACTOR, plus 2 % and 1 % seeded noise); calibration over
 the committed records must find them within 3 % (the generator's documented promise).
 """
@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pytest
 
-from builder.demo import FAMILY_EFFICIENCY, FAMILY_TRAVEL_FACTOR
+from builder.demo.catalogue import FAMILY_EFFICIENCY, FAMILY_TRAVEL_FACTOR
 from builder.history import analyse
 from builder.records import load_shop
 
@@ -35,7 +35,7 @@ def test_calibration_recovers_the_generator_losses(analysis, family):
 
 
 def test_leave_one_out_error_is_about_the_generator_noise(analysis):
-    # 2 % effort noise (builder/demo.py EFFORT_NOISE): for normal noise the median |error|
+    # 2 % effort noise (builder/demo/catalogue.py EFFORT_NOISE): for normal noise the median |error|
     # is 0.674 sigma = 1.3 % (any statistics text); allow up to 3 % for the estimate's own
     # error and the rounding of the recorded values
     assert analysis.calibration.shop.loo_median_abs_err < 0.03

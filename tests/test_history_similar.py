@@ -1,12 +1,11 @@
-"""Similar builds: distance, order, candidates and the "what differs" wording."""
+"""Similar builds: distance, order, candidates and what differs (as data)."""
 import math
 
 import numpy as np
 import pytest
 
-from builder.history import SimilarityIndex, distance_description
-from builder.history.similar import CATEGORY_WEIGHTS, NUMERIC_SCALE, differences
-from builder.units import show_one
+from builder.history import SimilarityIndex
+from builder.history.similar import CATEGORY_WEIGHTS, NUMERIC_SCALE, Difference, differences
 from test_history_factories import INCH, make_build, make_sizing
 
 
@@ -109,35 +108,38 @@ def test_empty_index():
     assert SimilarityIndex([]).query(*pair("QX-900")) == []
 
 
-def test_differs_wording():
+def test_differs_as_data():
     other = make_build("QX-001", family="TR-4B", slave_bore=0.875 * INCH)
     build = make_build("QX-900", family="QX-5", slave_bore=0.750 * INCH)
-    words = differences(other, make_sizing("QX-001", ratio_pedal=6.1),
+    found = differences(other, make_sizing("QX-001", ratio_pedal=6.1),
                         build, make_sizing("QX-900", ratio_pedal=5.4))
-    # 0.875 / 0.750 - 1 = +16.7 % and 6.1 / 5.4 - 1 = +13.0 % (by hand); quantities are
-    # written by builder.units.show_one, tested with the units
-    bores = " vs ".join(show_one(d * INCH, "length", "imperial") for d in (0.875, 0.75))
-    assert bores == "0.875 in vs 0.75 in"
-    assert words == ("family TR-4B vs QX-5", f"slave bore {bores} (+17 %)",
-                     "pedal ratio 6.1 vs 5.4 (+13 %)")
-    metric = differences(other, make_sizing("QX-001"), build, make_sizing("QX-900"), "metric")
-    # 0.875 in = 22.225 mm, 0.750 in = 19.05 mm (1 in = 25.4 mm exactly, NIST SP 811)
-    assert f"slave bore 22.2 mm vs {show_one(0.75 * INCH, 'length', 'metric')} (+17 %)" in metric
+    # the other build's value first; bores in m (1 in = 0.0254 m exactly, NIST SP 811)
+    assert found == (Difference("gearbox.family", "TR-4B", "QX-5", None),
+                     Difference("slave.bore", 0.875 * INCH, 0.75 * INCH, "length"),
+                     Difference("ratio.pedal", 6.1, 5.4, "ratio"))
 
 
 def test_differs_names_piston_area_and_categories():
     other = make_build("QX-001", slave_kind="concentric", fork_tip="none",
                        slave_bore=None, piston_area=1.9 * INCH**2, release_load=1900.0)
     build = make_build("QX-900", release_load=1800.0)
-    words = differences(other, make_sizing("QX-001"), build, make_sizing("QX-900"))
-    # 7/8 in bore: pi/4 * 0.875^2 = 0.601 in^2; 1.9/0.601 - 1 = +216 %; 1900/1800 - 1 = +6 %
-    assert words[:2] == ("fork tip none vs rearward", "slave kind concentric vs external")
-    assert "slave piston area 1.9 in^2 vs 0.601 in^2 (+216 %)" in words
-    assert any(w.startswith("release load") and w.endswith("(+6 %)") for w in words)
+    found = differences(other, make_sizing("QX-001"), build, make_sizing("QX-900"))
+    # a piston area is compared as an area: 7/8 in bore is pi/4 * 0.875^2 in^2
+    assert found[:2] == (Difference("gearbox.fork_tip_moves", "none", "rearward", None),
+                         Difference("slave.kind", "concentric", "external", None))
+    area = next(d for d in found if d.field == "slave.piston_area")
+    assert (area.theirs, area.ours) == (pytest.approx(1.9 * INCH**2),
+                                        pytest.approx(math.pi / 4 * (0.875 * INCH) ** 2))
+    load = next(d for d in found if d.field == "clutch.release_load")
+    assert (load.theirs, load.ours, load.dimension) == (1900.0, 1800.0, "force")
 
 
-def test_distance_description_states_the_weights_and_scale():
-    text = distance_description()
+def test_distance_is_documented_with_its_weights_and_scale():
+    import inspect
+
+    from builder.history import similar
+
+    text = inspect.getdoc(similar)
     assert all(weight == 1.0 for weight in CATEGORY_WEIGHTS.values())
     assert NUMERIC_SCALE == math.log(1.10)
     assert "ln(1.10)" in text and "1.0 when the gearbox family differs" in text

@@ -213,8 +213,8 @@ def test_implausible_quantity_names_the_accepted_range(shop, tmp_path, old, new,
 
 
 @pytest.mark.parametrize("old, new, field, accepted", [
-    ("default_efficiency: 85 %", "default_efficiency: 0 %", "default_efficiency", "10 % to 100 %"),
-    ("default_efficiency: 85 %", "default_efficiency: NaN", "default_efficiency", "10 % to 100 %"),
+    ("default_efficiency: 85 %", "default_efficiency: 0 %", "default_efficiency", "10.0 % to 100.0 %"),
+    ("default_efficiency: 85 %", "default_efficiency: NaN", "default_efficiency", "10.0 % to 100.0 %"),
     ("fluid_bulk_modulus: 1.7 GPa", "fluid_bulk_modulus: inf GPa", "fluid_bulk_modulus", "to 1450377 psi"),
     ("low: 15 lbf", "low: -15 lbf", "effort_band.low", "2.2 lbf (10 N) to 224.8 lbf (1000 N)"),
 ])

@@ -18,7 +18,7 @@ from click.testing import CliRunner
 
 from builder.problems import InputError
 from builder.records import load_build_file, load_catalogue, load_rules, load_shop, validate_paths
-from builder.records.fields import PLAUSIBLE
+from builder.records.convert import PLAUSIBLE
 
 IN, LBF, PSI = 0.0254, 4.4482216152605, 6894.757293168  # NIST SP 811, B.8
 

@@ -10,7 +10,8 @@ from pathlib import Path
 
 import pytest
 
-from builder.records import fields, load_catalogue
+from builder.records import convert as fields
+from builder.records import load_catalogue
 from builder.records._schema import quantity_message, reference_validator, schema_problems
 from builder.records._yaml import Located, NeedsCare, careful_load, fast_load
 
@@ -23,7 +24,7 @@ def test_a_part_named_alone_resolves_as_make_section_does():
         section = fields.SECTION_OF_KIND[kind]
         for part in parts.values():
             plain = fields.make_section(section, fields.section_fields(part.section),
-                                        fields.Reporter("x"), (section,), part.id)
+                                        fields.ProblemCollector("x"), (section,), part.id)
             assert fields.referenced(part) == plain, part.id
 
 
@@ -32,10 +33,10 @@ def test_remembered_quantities_keep_the_schema_form(text):
     # jsonschema refuses these forms for a length (schema pattern) though the number reads.
     document = {"kind": "masters", "parts": [{"id": "MC-1", "bore": text, "stroke": "1 in"}]}
     assert not reference_validator("parts").is_valid(document)
-    assert fields.quantity("3 mm", "master.bore", fields.Reporter("x"), ("bore",)) == 0.003
+    assert fields.quantity("3 mm", "master.bore", fields.ProblemCollector("x"), ("bore",)) == 0.003
     with pytest.raises(NeedsCare):  # the fast path hands it to the careful path
-        fields.quantity(text, "master.bore", fields.Reporter("x"), ("bore",))
-    report = fields.Reporter("x", Located())  # worded as the careful path's schema check words it
+        fields.quantity(text, "master.bore", fields.ProblemCollector("x"), ("bore",))
+    report = fields.ProblemCollector("x", Located())  # worded as the careful path's schema check words it
     assert fields.quantity(text, "master.bore", report, ("bore",)) is None
     ((_, _, _, said),) = schema_problems("parts", document)
     assert report.problems[0].message == said + fields.accepted("master.bore")

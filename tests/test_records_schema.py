@@ -13,7 +13,8 @@ import pytest
 import yaml
 from jsonschema import Draft202012Validator
 
-from builder.records import fields, load_catalogue
+from builder.records import convert as fields
+from builder.records import load_catalogue
 from builder.records._load import _build_converter, _convert_rules, _parts_converter
 from builder.records._schema import fast_schema, is_valid_fast, quantity_patterns, reference_validator, schema
 from builder.records._yaml import Loader, Located, NeedsCare
@@ -125,12 +126,12 @@ def _verdicts(name: str, document: dict, convert) -> tuple[object, object]:
     conversion reporting problems.
     """
     try:
-        fast = convert(document, fields.Reporter("doc")) if is_valid_fast(name, document) else None
+        fast = convert(document, fields.ProblemCollector("doc")) if is_valid_fast(name, document) else None
     except NeedsCare:
         fast = None
     reference = None
     if reference_validator(name).is_valid(document):
-        report = fields.Reporter("doc", Located())
+        report = fields.ProblemCollector("doc", Located())
         result = convert(document, report)
         reference = None if report.problems else result
     return fast, reference

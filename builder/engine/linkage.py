@@ -16,7 +16,12 @@ SWEEP_SAMPLES = 96  # layout mode: poses computed through the swing
 
 
 class GeometryError(ValueError):
-    """A pedal layout that cannot push a master at all (message is for the technician)."""
+    """A pedal that cannot push a master at all. `reason` is a code of ours:
+    "points-coincide", "pushrod-along-crank" or "no-lengths"; builder.presentation words it."""
+
+    def __init__(self, reason: str):
+        super().__init__(reason)
+        self.reason = reason
 
 
 def lever_ratio(arm_out: float, arm_in: float) -> float:
@@ -110,16 +115,11 @@ class SliderCrankPedal:
         self.pad_radius = math.hypot(layout.pad[0] - px, layout.pad[1] - py)
         crank_radius = math.hypot(*crank)
         if self.rod <= 0.0 or crank_radius <= 0.0 or self.pad_radius <= 0.0:
-            raise GeometryError(
-                "pivot, clevis, pad and pushrod seat must be distinct points"
-            )
+            raise GeometryError("points-coincide")
         self.axis = ((sx - cx) / self.rod, (sy - cy) / self.rod)
         rate_ccw = -crank[1] * self.axis[0] + crank[0] * self.axis[1]
         if abs(rate_ccw) < 1e-6 * crank_radius:
-            raise GeometryError(
-                "the pushrod lies along the line from pivot to clevis at rest,"
-                " so turning the pedal cannot push the master"
-            )
+            raise GeometryError("pushrod-along-crank")
         self.sense = 1.0 if rate_ccw > 0.0 else -1.0
         self._along0 = crank[0] * self.axis[0] + crank[1] * self.axis[1]  # k0 . u
         self._across0 = self.axis[0] * crank[1] - self.axis[1] * crank[0]  # u x k0

@@ -7,10 +7,30 @@ Point = tuple[float, float]
 
 
 @dataclass(frozen=True, slots=True)
+class Figure:
+    """One quantity a flag speaks of: its name in the flag, SI value and dimension."""
+
+    name: str  # e.g. "bearing", "needed", "margin"
+    value: float  # SI: m, N, Pa, m^3, rad; a plain fraction for "fraction"
+    dimension: str  # "length" | "force" | "pressure" | "volume" | "angle" | "fraction"
+
+
+@dataclass(frozen=True, slots=True)
 class Flag:
-    code: str  # our own plain code, e.g. "travel-short"
+    """A check that fired: a code of our own, its severity and the quantities behind it.
+
+    builder.presentation words it; nothing here is a sentence.
+    """
+
+    code: str  # e.g. "travel-short"
     severity: str  # "warn" | "fail"
-    message: str  # one plain sentence for a technician
+    values: tuple[Figure, ...] = ()
+    subject: str | None = None  # which part, where a code can concern several ("master", "slave")
+    basis: str = "computed"  # "computed" (engine), "calibrated" or "after_losses" (history)
+
+    def value(self, name: str) -> float:
+        """The SI value of the figure called `name`."""
+        return next(figure.value for figure in self.values if figure.name == name)
 
 
 @dataclass(frozen=True, slots=True)

@@ -29,7 +29,7 @@ def pedal_linkage(pedal: Pedal) -> LeverPedal | SliderCrankPedal:
     if pedal.layout is not None:
         return SliderCrankPedal(pedal.layout)
     if pedal.pivot_to_pad is None or pedal.pivot_to_clevis is None:
-        raise GeometryError("the pedal needs pivot_to_pad and pivot_to_clevis, or a layout")
+        raise GeometryError("no-lengths")
     return LeverPedal(pedal.pivot_to_pad, pedal.pivot_to_clevis, pedal.pad_travel)
 
 
@@ -41,8 +41,8 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
     (effort_curve None), about half the cost of a build with a load curve, for callers
     that need only the figures.
 
-    Raises GeometryError (a ValueError with a plain message) when a pedal layout
-    cannot push the master at all.
+    Raises GeometryError (with a reason code) when a pedal layout cannot push the
+    master at all.
     """
     eff = rules.default_efficiency if efficiency is None else efficiency
     clutch, master, slave, line = build.clutch, build.master, build.slave, build.line
@@ -133,7 +133,7 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
     found = (
         checks.travel_flags(sizing, rules)
         + checks.effort_flags(sizing, rules)
-        + checks.pressure_flags(sizing, build, rules)
+        + checks.pressure_flags(sizing, build)
         + checks.linkage_flags(sizing, build, rules, pedal)
     )
     if found:  # finish construction: the checks read the sizing they belong to

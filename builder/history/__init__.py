@@ -1,16 +1,14 @@
 """The shop's memory: computed-versus-measured deltas, calibration from past builds,
-calibrated predictions and similar builds."""
+calibrated predictions and similar builds. Numbers and codes only; no words."""
 from builder.history.analysis import (
-    Analysis, SimilarLists, analyse, analyse_proposal, geometry_problems,
+    Analysis, SimilarLists, UnsizableBuilds, analyse, analyse_proposal, unsizable,
 )
-from builder.history.calibration import (
-    Calibration, GroupCalibration, Prediction, calibrate, calibration_description,
-)
+from builder.history.calibration import Basis, Calibration, GroupCalibration, Prediction, calibrate
 from builder.history.deltas import Deltas, deltas
-from builder.history.similar import SimilarBuild, SimilarityIndex, distance_description
+from builder.history.similar import Difference, SimilarBuild, SimilarityIndex
 
 __all__ = [
-    "Analysis", "Calibration", "Deltas", "GroupCalibration", "Prediction", "SimilarBuild",
-    "SimilarLists", "SimilarityIndex", "analyse", "analyse_proposal", "calibrate",
-    "calibration_description", "deltas", "distance_description", "geometry_problems",
+    "Analysis", "Basis", "Calibration", "Deltas", "Difference", "GroupCalibration", "Prediction",
+    "SimilarBuild", "SimilarLists", "SimilarityIndex", "analyse", "analyse_proposal", "calibrate",
+    "deltas", "unsizable", "UnsizableBuilds",
 ]

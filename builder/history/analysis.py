@@ -10,10 +10,20 @@ from builder.engine.result import Sizing
 from builder.engine.travel import bearing_travel
 from builder.history.calibration import Calibration, Prediction, calibrate
 from builder.history.deltas import Deltas, deltas
+from builder.history.reference import Combination, combinations
 from builder.history.similar import SimilarBuild, SimilarityIndex
 from builder.model import Build, Shop, ShopRules
-from builder.problems import InputError, Problem
-from builder.records import locate
+
+
+class UnsizableBuilds(Exception):
+    """Builds whose pedal cannot push their master: (build, GeometryError) pairs.
+
+    The command line places each at its record's `pedal.layout` key and words it.
+    """
+
+    def __init__(self, failures: list[tuple[Build, GeometryError]]):
+        super().__init__(", ".join(build.id for build, _ in failures))
+        self.failures = failures
 
 
 class SimilarLists(Mapping[str, list[SimilarBuild]]):
@@ -54,6 +64,7 @@ class Analysis:
     predictions: dict[str, Prediction]  # every build; a build never predicts itself
     similar: SimilarLists  # every build, computed on first access
     index: SimilarityIndex
+    reference: dict[tuple[str, str], list[Combination]]  # (family, fork direction) -> rows
     k: int = 5
     _curves: dict[str, tuple[tuple[float, float], ...] | None] = field(default_factory=dict)
 
@@ -73,14 +84,14 @@ class Analysis:
 def analyse(shop: Shop, k: int = 5) -> Analysis:
     """Size every build with the shop rules, then deltas, calibration, predictions.
 
-    A pedal layout that cannot push its master raises InputError naming every such build.
+    A pedal layout that cannot push its master raises UnsizableBuilds naming every such build.
     """
-    sizings, problems = _size_all(shop.builds, shop.rules)
-    if problems:
-        raise InputError(problems)
+    sizings, failures = _size_all(shop.builds, shop.rules)
+    if failures:
+        raise UnsizableBuilds(failures)
     pairs = [(b, sizings[b.id]) for b in shop.builds]
     calibration = calibrate(pairs)
-    index = SimilarityIndex(pairs, system=shop.rules.display_units)
+    index = SimilarityIndex(pairs)
     predictions = {b.id: calibration.predict(b, s) for b, s in pairs}
     sizings = {b.id: judged_on_history(s, predictions[b.id], shop.rules)
                for b, s in pairs}
@@ -94,6 +105,7 @@ def analyse(shop: Shop, k: int = 5) -> Analysis:
         predictions=predictions,
         similar=SimilarLists(builds, sizings, index, k),
         index=index,
+        reference=combinations([(b, sizings[b.id]) for b in shop.builds]),
         k=k,
     )
 
@@ -107,7 +119,7 @@ def analyse_proposal(analysis: Analysis, build: Build, k: int | None = None
     try:
         sizing = size_build(build, analysis.shop.rules)
     except GeometryError as error:
-        raise InputError([_geometry_problem(build, error)]) from None
+        raise UnsizableBuilds([(build, error)]) from None
     prediction = analysis.calibration.predict(build, sizing)
     sizing = judged_on_history(sizing, prediction, analysis.shop.rules)
     similar = analysis.index.query(build, sizing, k=analysis.k if k is None else k,
@@ -126,36 +138,29 @@ def judged_on_history(sizing: Sizing, prediction: Prediction, rules: ShopRules) 
     flags = sizing.flags
     if prediction.effort is not None:
         flags = tuple(f for f in flags if f.code not in EFFORT_CODES) + tuple(
-            effort_band_flags(prediction.effort, rules, "Calibrated"))
+            effort_band_flags(prediction.effort, rules, basis="calibrated"))
     if prediction.travel_margin is not None and prediction.travel_margin < sizing.margin:
         bearing = bearing_travel(prediction.slave_travel, sizing.ratio_fork)
         after_losses = margin_flags(bearing, sizing.needed_bearing_travel, rules,
-                                    "After the shop's measured travel losses, bearing travel")
+                                    basis="after_losses")
         if after_losses:
             flags = tuple(f for f in flags if f.code != "travel-short") + tuple(after_losses)
     return sizing if flags == sizing.flags else replace(sizing, flags=flags)
 
 
-def geometry_problems(builds: Sequence[Build], rules: ShopRules) -> list[Problem]:
-    """A located problem for every build whose pedal layout cannot push its master."""
+def unsizable(builds: Sequence[Build], rules: ShopRules) -> list[tuple[Build, GeometryError]]:
+    """Every build whose pedal cannot push its master, with the engine's reason."""
     return _size_all(builds, rules)[1]
 
 
 def _size_all(builds: Sequence[Build], rules: ShopRules
-              ) -> tuple[dict[str, Sizing], list[Problem]]:
-    """Sizings (without the effort series) of the builds that size, and a located problem
-    for each that cannot."""
+              ) -> tuple[dict[str, Sizing], list[tuple[Build, GeometryError]]]:
+    """Sizings (without the effort series) of the builds that size, and the failures."""
     sizings: dict[str, Sizing] = {}
-    problems: list[Problem] = []
+    failures: list[tuple[Build, GeometryError]] = []
     for build in builds:
         try:
             sizings[build.id] = size_build(build, rules, with_curve=False)
         except GeometryError as error:
-            problems.append(_geometry_problem(build, error))
-    return sizings, problems
-
-
-def _geometry_problem(build: Build, error: GeometryError) -> Problem:
-    """The engine's word on a layout, placed at the record's `pedal.layout` line."""
-    line, col = locate(build.path, "pedal.layout") if build.path else (0, 0)
-    return Problem(build.path or build.id, line, col, "pedal.layout", str(error))
+            failures.append((build, error))
+    return sizings, failures

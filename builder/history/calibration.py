@@ -27,7 +27,6 @@ has five or more, else from the shop-wide ones. Fewer than three builds: no pred
 """
 from __future__ import annotations
 
-import inspect
 from collections.abc import Sequence
 from dataclasses import dataclass
 
@@ -48,11 +47,6 @@ FAMILY_INTERVAL_BUILDS = 5  # a family's own residuals set the interval from thi
 INTERVAL_QUANTILES = (0.10, 0.90)  # an 80 % interval from the empirical residual quantiles
 INTERVAL_PERCENT = round(100 * (INTERVAL_QUANTILES[1] - INTERVAL_QUANTILES[0]))
 ERROR_QUANTILE = 0.90  # reported alongside the median absolute leave-one-out error
-
-
-def calibration_description() -> str:
-    """The calibration method in plain words, for the site (this module's docstring)."""
-    return inspect.cleandoc(__doc__)
 
 
 def shrink_weight(n: int, prior_builds: float = PRIOR_BUILDS) -> float:
@@ -100,14 +94,27 @@ class GroupCalibration:
 
 
 @dataclass(frozen=True, slots=True)
+class Basis:
+    """Which history a calibrated prediction and its interval come from."""
+
+    source: str  # "family" (its own median), "shrunk" (toward the shop-wide), "shop-wide"
+    family: str
+    n_family: int  # the family's other counted builds
+    n_shop: int  # every other counted build
+    weight: float  # the family median's weight w
+    interval_source: str | None  # "family" | "shop-wide" | None without an interval
+    interval_count: int  # leave-one-out residuals behind the interval
+    interval_percent: int = 0  # nominal coverage of the interval, e.g. 80
+
+
+@dataclass(frozen=True, slots=True)
 class Prediction:
     """A calibrated effort prediction for one build."""
 
-    effort: float | None  # N; None with "not enough history"
+    effort: float | None  # N; None with not enough history
     interval: tuple[float, float] | None  # N, 80 % interval (10th to 90th percentile)
     n_builds: int  # builds behind the estimate (never the build itself)
-    basis: str  # plain words: which history the estimate and interval come from
-    note: str | None  # e.g. "not enough history (2 builds)"
+    basis: Basis | None  # None with not enough history
     slave_travel: float | None = None  # m, computed slave travel * calibrated travel factor
     travel_margin: float | None = None  # fraction, the bearing margin at that slave travel
 
@@ -259,46 +266,35 @@ class Calibration:
         family = build.gearbox.family
         estimate = self._efficiency.estimate(family, exclude_id=build.id)
         if estimate.value is None:
-            count = estimate.n_shop
-            note = f"not enough history ({count} build{'' if count == 1 else 's'})"
-            return Prediction(None, None, count, "", note)
+            return Prediction(None, None, estimate.n_shop, None)
         effort = sizing.effort_ideal / estimate.value
         travel = self._travel.estimate(family, exclude_id=build.id).value
         slave = sizing.slave_travel * travel if travel is not None else None
-        interval, interval_words = self._interval(family, build.id, effort)
+        interval, interval_source, interval_count = self._interval(family, build.id, effort)
         full_weight = estimate.weight == 1.0
+        source = "family" if full_weight else "shop-wide" if estimate.weight == 0.0 else "shrunk"
         return Prediction(
             effort=effort,
             interval=interval,
             n_builds=estimate.n_family if full_weight else estimate.n_shop,
-            basis=f"{_estimate_words(family, estimate)}; {interval_words}",
-            note=None if interval else "no interval yet: too few leave-one-out residuals",
+            basis=Basis(source, family, estimate.n_family, estimate.n_shop, estimate.weight,
+                        interval_source, interval_count, INTERVAL_PERCENT),
             slave_travel=slave,
             travel_margin=None if slave is None else travel_margin(
                 bearing_travel(slave, sizing.ratio_fork), sizing.needed_bearing_travel),
         )
 
     def _interval(self, family: str, build_id: str, effort: float
-                  ) -> tuple[tuple[float, float] | None, str]:
+                  ) -> tuple[tuple[float, float] | None, str | None, int]:
+        """(interval N, "family" | "shop-wide" | None, residuals behind it)."""
         for name in (family, SHOP_WIDE):
             residuals = self._residuals.get(name)
             if residuals is None or residuals.count_without(build_id) < FAMILY_INTERVAL_BUILDS:
                 continue
             low, high = (residuals.quantile_without(q, build_id) for q in INTERVAL_QUANTILES)
-            words = "family" if name == family else "shop-wide"
-            count = residuals.count_without(build_id)
-            return (effort * (1 + low), effort * (1 + high)), (
-                f"{INTERVAL_PERCENT} % interval from {count} {words} leave-one-out residuals")
-        return None, "no interval"
-
-
-def _estimate_words(family: str, estimate: _Estimate) -> str:
-    if estimate.weight == 1.0:
-        return f"family {family}: median of {estimate.n_family} builds"
-    if estimate.weight == 0.0:
-        return f"shop-wide median of {estimate.n_shop} builds (no other {family} builds)"
-    return (f"family {family} ({estimate.n_family} builds) shrunk toward the shop-wide median "
-            f"of {estimate.n_shop} builds, family weight {estimate.weight:.2f}")
+            source = "family" if name == family else SHOP_WIDE
+            return (effort * (1 + low), effort * (1 + high)), source, residuals.count_without(build_id)
+        return None, None, 0
 
 
 def calibrate(pairs: Sequence[tuple[Build, Sizing]]) -> Calibration:

@@ -15,11 +15,10 @@ An identical build is at distance 0. Candidates are the builds with a measured s
 (measured, verified and rejected: a rejected build close to a proposal is a warning). The
 nearest come first; equal distances are ordered by build id. "What differs" names each
 mismatch and each quantity that differs by 1 % or more, the similar build's value first,
-then the build asked about, and the relative difference between them.
+then the build asked about.
 """
 from __future__ import annotations
 
-import inspect
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -28,24 +27,29 @@ import numpy as np
 
 from builder.engine.result import Sizing
 from builder.model import Build
-from builder.units import show_one
 
-CATEGORY_WEIGHTS = {"family": 1.0, "fork tip": 1.0, "slave kind": 1.0}
+CATEGORY_WEIGHTS = {"gearbox.family": 1.0, "gearbox.fork_tip_moves": 1.0, "slave.kind": 1.0}
 NUMERIC_SCALE = math.log(1.10)  # a 10 % difference adds 1.0
 NOTABLE_DIFFERENCE = 0.01  # quantities closer than 1 % are not listed as differing
 CANDIDATE_STATUSES = ("measured", "verified", "rejected")
 
 
-def distance_description() -> str:
-    """The distance in plain words, for the site's method page (this module's docstring)."""
-    return inspect.cleandoc(__doc__)
+@dataclass(frozen=True, slots=True)
+class Difference:
+    """One way a similar build differs: the field, its value, ours, and the dimension
+    (None for a category such as the gearbox family; "ratio" for a plain ratio)."""
+
+    field: str  # e.g. "gearbox.family", "master.bore", "ratio.pedal"
+    theirs: float | str
+    ours: float | str
+    dimension: str | None
 
 
 @dataclass(frozen=True, slots=True)
 class SimilarBuild:
     id: str
     distance: float
-    differs: tuple[str, ...]  # plain words, the similar build's value first
+    differs: tuple[Difference, ...]  # the similar build's value first
     measured_effort: float | None  # N
     outcome: str | None
     status: str
@@ -56,13 +60,8 @@ def _categories(build: Build) -> tuple[str, str, str]:
     return build.gearbox.family, build.gearbox.fork_tip_moves, build.slave.kind
 
 
-def _equivalent_bore(build: Build) -> float:
-    """Bore of a round piston with the slave's area, D = sqrt(4 A / pi) (m)."""
-    return math.sqrt(4.0 * build.slave.area / math.pi)
-
-
 def _numbers(build: Build, sizing: Sizing) -> tuple[float, ...]:
-    return (build.master.bore, _equivalent_bore(build), sizing.ratio_pedal,
+    return (build.master.bore, build.slave.equivalent_bore, sizing.ratio_pedal,
             sizing.ratio_overall, build.clutch.release_load)
 
 
@@ -74,8 +73,7 @@ def _log_scaled(values) -> np.ndarray:
 class SimilarityIndex:
     """Measured builds in a feature matrix built once; `query` finds the nearest k."""
 
-    def __init__(self, pairs: Sequence[tuple[Build, Sizing]], system: str = "imperial"):
-        self.system = system  # "imperial" | "metric": units for "what differs"
+    def __init__(self, pairs: Sequence[tuple[Build, Sizing]]):
         self._pairs = [(b, s) for b, s in pairs
                        if b.measured is not None and b.status in CANDIDATE_STATUSES]
         self._index = {b.id: i for i, (b, _) in enumerate(self._pairs)}
@@ -124,7 +122,7 @@ class SimilarityIndex:
         return SimilarBuild(
             id=other.id,
             distance=distance,
-            differs=differences(other, other_sizing, build, sizing, self.system),
+            differs=differences(other, other_sizing, build, sizing),
             measured_effort=measured.pedal_effort,
             outcome=other.outcome,
             status=other.status,
@@ -132,31 +130,24 @@ class SimilarityIndex:
         )
 
 
-def differences(other: Build, other_sizing: Sizing, build: Build, sizing: Sizing,
-                system: str = "imperial") -> tuple[str, ...]:
-    """What differs, in plain words: `other`'s value first, then `build`'s."""
-    words = [f"{name} {theirs} vs {ours}"
+def differences(other: Build, other_sizing: Sizing, build: Build, sizing: Sizing
+                ) -> tuple[Difference, ...]:
+    """What differs: each category that does not match, and each compared quantity that
+    differs by NOTABLE_DIFFERENCE or more; `other`'s value first, then `build`'s."""
+    found = [Difference(name, theirs, ours, None)
              for name, theirs, ours in zip(CATEGORY_WEIGHTS, _categories(other), _categories(build))
              if theirs != ours]
     area_given = other.slave.piston_area is not None or build.slave.piston_area is not None
-    slave = (("slave piston area", other.slave.area, build.slave.area, "area") if area_given
-             else ("slave bore", _equivalent_bore(other), _equivalent_bore(build), "length"))
+    slave = (("slave.piston_area", other.slave.area, build.slave.area, "area") if area_given
+             else ("slave.bore", other.slave.equivalent_bore, build.slave.equivalent_bore, "length"))
     quantities = (
-        ("master bore", other.master.bore, build.master.bore, "length"),
+        ("master.bore", other.master.bore, build.master.bore, "length"),
         slave,
-        ("pedal ratio", other_sizing.ratio_pedal, sizing.ratio_pedal, None),
-        ("overall ratio", other_sizing.ratio_overall, sizing.ratio_overall, None),
-        ("release load", other.clutch.release_load, build.clutch.release_load, "force"),
+        ("ratio.pedal", other_sizing.ratio_pedal, sizing.ratio_pedal, "ratio"),
+        ("ratio.overall", other_sizing.ratio_overall, sizing.ratio_overall, "ratio"),
+        ("clutch.release_load", other.clutch.release_load, build.clutch.release_load, "force"),
     )
-    for name, theirs, ours, dimension in quantities:
-        if ours > 0 and abs(theirs / ours - 1.0) >= NOTABLE_DIFFERENCE:
-            words.append(f"{name} {_show(theirs, dimension, system)} vs "
-                         f"{_show(ours, dimension, system)} ({100 * (theirs / ours - 1):+.0f} %)")
-    return tuple(words)
-
-
-def _show(value: float, dimension: str | None, system: str) -> str:
-    if dimension is None:
-        return f"{value:.1f}"
-    return show_one(value, dimension, system)
-
+    found += [Difference(name, theirs, ours, dimension)
+              for name, theirs, ours, dimension in quantities
+              if ours > 0 and abs(theirs / ours - 1.0) >= NOTABLE_DIFFERENCE]
+    return tuple(found)

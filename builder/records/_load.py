@@ -11,8 +11,9 @@ from collections.abc import Callable, Iterable
 from pathlib import Path
 
 from builder import model
+from builder.fields import FIELDS
 from builder.problems import InputError, Problem
-from builder.records import fields as f
+from builder.records import convert as f
 from builder.records._schema import dotted, is_valid_fast, schema_problems
 from builder.records._yaml import NeedsCare, careful_load, fast_load, read_text
 
@@ -21,20 +22,26 @@ _MEASURED_STATUSES = ("measured", "verified")
 Progress = Callable[[int, int], None]
 
 
-def _load(path: Path, schema: str, convert: Callable[[dict, f.Reporter], object]) -> tuple[object, list[Problem]]:
+def _load(path: Path, schema: str, convert: Callable[[dict, f.ProblemCollector], object]) -> tuple[object, list[Problem]]:
     """(converted object, []) or (None, every problem in the file)."""
     shown = str(path)
     text, unreadable = read_text(path)
     if unreadable:
         return None, [Problem(shown, *unreadable[:2], "file", unreadable[2])]
+    return _load_text(text, shown, schema, convert)
+
+
+def _load_text(text: str, shown: str, schema: str, convert: Callable[[dict, f.ProblemCollector], object]
+               ) -> tuple[object, list[Problem]]:
+    """As _load, for a document already read; `shown` names it in problems."""
     try:
         data = fast_load(text)
         if is_valid_fast(schema, data):
-            return convert(data, f.Reporter(shown)), []
+            return convert(data, f.ProblemCollector(shown)), []
     except NeedsCare:
         pass
     doc = careful_load(text)
-    report = f.Reporter(shown, doc)
+    report = f.ProblemCollector(shown, doc)
     report.problems.extend(Problem(shown, line, col, dotted(where), message) for where, line, col, message in doc.problems)
     if doc.data is None and report.problems:  # unreadable; a document of just `null` goes on
         return None, report.problems
@@ -47,21 +54,21 @@ def _load(path: Path, schema: str, convert: Callable[[dict, f.Reporter], object]
     return (None, report.problems) if report.problems else (result, [])
 
 
-def _convert_rules(data: dict, report: f.Reporter) -> model.ShopRules | None:
-    def get(key: str, *inner: str, range_key: str | None = None):
-        where = (key, *inner)
-        value = data.get(key)
-        for step in inner:
+def _convert_rules(data: dict, report: f.ProblemCollector) -> model.ShopRules | None:
+    def get(*where: str):
+        value = data
+        for step in where:
             value = value.get(step) if isinstance(value, dict) else None
+        if value is None:  # left out: the field table's default, if it has one
+            value = FIELDS[".".join(("shop", *where))].default
         if value is None or not report.clean(where):
             return None
-        return f.quantity(value, range_key or f"shop.{key}", report, where)
+        return f.quantity(value, ".".join(("shop", *where)), report, where)
 
     band = (get("effort_band", "low"), get("effort_band", "high"))
     hoses = {hose: get("hose_expansion", hose) for hose in model.HOSE_KINDS}
     if None not in band and band[0] >= band[1]:
         report(("effort_band",), "low must be below high")
-    optional = {key: get(key) for key in ("line_bore", "max_pushrod_angle") if key in data}
     values = dict(
         effort_band=band,
         min_travel_margin=get("min_travel_margin"),
@@ -69,11 +76,47 @@ def _convert_rules(data: dict, report: f.Reporter) -> model.ShopRules | None:
         default_efficiency=get("default_efficiency"),
         hose_expansion=hoses,
         fluid_bulk_modulus=get("fluid_bulk_modulus"),
-        **optional,
+        line_bore=get("line_bore"),
+        max_pushrod_angle=get("max_pushrod_angle"),
     )
     if report.problems or None in band or None in hoses.values() or None in values.values():
         return None
     return model.ShopRules(site_title=str(data["site_title"]), display_units=data["display_units"], **values)
+
+
+def parse_rules(text: str, shown: str = "shop.yaml") -> model.ShopRules:
+    """Shop rules from the text of a shop.yaml; InputError with every problem."""
+    rules, problems = _load_text(text, shown, "shop", _convert_rules)
+    if problems:
+        raise InputError(problems)
+    return rules
+
+
+def parse_catalogue(texts: dict[str, str]) -> dict[str, dict[str, model.Part]]:
+    """kind -> id -> Part from the texts of parts files, by kind; InputError with every problem."""
+    catalogue: dict[str, dict[str, model.Part]] = {kind: {} for kind in model.PART_KINDS}
+    taken: dict[str, str] = {}
+    problems: list[Problem] = []
+    for kind, text in texts.items():
+        path = Path("parts", f"{kind}.yaml")
+        parts, found = _load_text(text, str(path), "parts", _parts_converter(path, taken))
+        problems += found
+        for part in parts or ():
+            catalogue[part.kind][part.id] = part
+            taken[part.id] = str(path)
+    if problems:
+        raise InputError(problems)
+    return catalogue
+
+
+def parse_build(text: str, catalogue: dict[str, dict[str, model.Part]], shown: str,
+                stem: str | None = None) -> model.Build:
+    """One build from its text; `stem`, when given, is the file name its id must equal.
+    InputError with every problem."""
+    build, problems = _load_text(text, shown, "build", _build_converter(catalogue, stem))
+    if problems:
+        raise InputError(problems)
+    return build
 
 
 def _rules(root: Path) -> tuple[model.ShopRules | None, list[Problem]]:
@@ -88,10 +131,10 @@ def load_rules(records_dir: str | os.PathLike) -> model.ShopRules:
     return rules
 
 
-def _parts_converter(path: Path, taken: dict[str, str]) -> Callable[[dict, f.Reporter], list[model.Part]]:
+def _parts_converter(path: Path, taken: dict[str, str]) -> Callable[[dict, f.ProblemCollector], list[model.Part]]:
     """Converts one parts file; `taken` maps part ids already loaded to their file."""
 
-    def convert(data: dict, report: f.Reporter) -> list[model.Part]:
+    def convert(data: dict, report: f.ProblemCollector) -> list[model.Part]:
         if report.blocked(("kind",)) or report.blocked(("parts",)):
             return []
         kind = data["kind"]
@@ -147,7 +190,7 @@ def load_catalogue(records_dir: str | os.PathLike, rules: model.ShopRules | None
     return catalogue
 
 
-def _find_part(catalogue: dict, section: str, part_id: str, report: f.Reporter, where: tuple) -> model.Part | None:
+def _find_part(catalogue: dict, section: str, part_id: str, report: f.ProblemCollector, where: tuple) -> model.Part | None:
     kind = f.CATALOGUE_KIND[section]
     part = catalogue.get(kind, {}).get(part_id)
     if part is not None:
@@ -165,10 +208,10 @@ def _find_part(catalogue: dict, section: str, part_id: str, report: f.Reporter, 
     return None
 
 
-def _build_converter(catalogue: dict, stem: str | None) -> Callable[[dict, f.Reporter], model.Build | None]:
+def _build_converter(catalogue: dict, stem: str | None) -> Callable[[dict, f.ProblemCollector], model.Build | None]:
     """Converts one build; `stem` is the file name the id must equal (None outside builds/)."""
 
-    def convert(data: dict, report: f.Reporter) -> model.Build | None:
+    def convert(data: dict, report: f.ProblemCollector) -> model.Build | None:
         sections = {name: _section(data, name, catalogue, report) for name in f.SECTION_FIELDS}
         build_id = data.get("id")
         if stem is not None and isinstance(build_id, str) and build_id != stem:
@@ -187,7 +230,7 @@ def _build_converter(catalogue: dict, stem: str | None) -> Callable[[dict, f.Rep
     return convert
 
 
-def _section(data: dict, name: str, catalogue: dict, report: f.Reporter):
+def _section(data: dict, name: str, catalogue: dict, report: f.ProblemCollector):
     raw = data.get(name)
     where = (name,)
     if not isinstance(raw, dict) or report.blocked(where):
@@ -206,7 +249,7 @@ def _section(data: dict, name: str, catalogue: dict, report: f.Reporter):
     return f.make_section(name, values, report, where, part_id)
 
 
-def _check_combination(data: dict, sections: dict, report: f.Reporter) -> None:
+def _check_combination(data: dict, sections: dict, report: f.ProblemCollector) -> None:
     """Slave kind against fork and fork tip movement; status against the measured section."""
     slave, gearbox = sections["slave"], sections["gearbox"]
     if slave is not None and slave.kind == "concentric":

@@ -133,10 +133,8 @@ def write_generated(analysis: Any, docs: Path, progress: Progress | None) -> Non
         target.write_text(text, encoding="utf-8")
     method = docs / "method.md"
     if method.exists():
-        from builder.history import calibration_description, distance_description
-
         with method.open("a", encoding="utf-8") as handle:
-            handle.write(method_appendix(calibration_description(), distance_description()))
+            handle.write(method_appendix())
 
 
 class _Collect(logging.Handler):

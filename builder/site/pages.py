@@ -9,18 +9,22 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as _dt
-import math
 import re
-import statistics
 from collections import defaultdict
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING
 
-from builder import units
+from builder import fields
+from builder import presentation as say
 from builder.model import Build, Part, ShopRules
 from builder.site import svg
 from builder.site.escape import front_matter_title, md, md_paragraphs
+
+if TYPE_CHECKING:
+    from builder.engine import Sizing
+    from builder.history import Analysis, Deltas, Prediction
+    from builder.history.reference import Combination
 
 STATUS_COLORS = {"verified": "#2e7d32", "measured": "#1565c0", "rejected": "#c62828",
                  "draft": "#757575"}
@@ -32,23 +36,8 @@ FORK_WORDS = {"forward": "fork tip moves forward", "rearward": "fork tip moves r
 PART_KINDS = {"gearboxes": ("gearbox", "Gearbox"), "clutches": ("clutch", "Clutch"),
               "masters": ("master", "Master cylinder"), "slaves": ("slave", "Slave cylinder"),
               "pedals": ("pedal", "Pedal assembly")}
-# record field -> dimension for units.show; fields not listed are text
-FIELD_DIMENSIONS = {
-    "release_load": "force", "release_travel": "length", "clearance": "length",
-    "pivot_to_slave": "length", "pivot_to_bearing": "length", "bore": "length",
-    "stroke": "length", "rated_pressure": "pressure", "piston_area": "area",
-    "length": "length", "pivot_to_pad": "length", "pivot_to_clevis": "length",
-    "pad_travel": "length", "rotation_to_stop": "angle", "pedal_effort": "force",
-    "slave_travel": "length", "pad_travel_to_release": "length", "floor_gap": "length",
-}
-FIELD_WORDS = {"fork_tip_moves": "fork tip moves", "pivot_to_slave": "pivot to slave",
-               "pivot_to_bearing": "pivot to bearing", "pivot_to_pad": "pivot to pad",
-               "pivot_to_clevis": "pivot to clevis", "pushrod_seat": "pushrod seat",
-               "rotation_to_stop": "rotation to stop", "pad_travel_to_release":
-               "pad travel to release", "load_curve": "load curve (bearing travel, load)"}
-CHART_UNITS = {"imperial": {"force": "lbf", "length": "in"}, "metric": {"force": "N", "length": "mm"}}
 LATEST = 10
-NONE = "\u2014"
+NONE = say.NONE
 _SLUG_BAD = re.compile(r"[^A-Za-z0-9._-]+")
 
 
@@ -79,31 +68,26 @@ class Display:
 
     def __init__(self, rules: ShopRules):
         self.primary = rules.display_units  # "imperial" | "metric" (the shop schema's enum)
-        self.chart = CHART_UNITS[self.primary]
-        self._per_unit = {dim: units.parse_quantity(f"1 {name}", dim)
-                          for dim, name in self.chart.items()}
 
     def q(self, value: float | None, dimension: str) -> str:
-        return NONE if value is None else md(units.show(value, dimension, self.primary))
+        return md(say.quantity(value, dimension, self.primary))
 
     def chart_value(self, value_si: float, dimension: str) -> float:
-        return value_si / self._per_unit[dimension]
+        return value_si / say.chart_unit(dimension, self.primary)[1]
 
     def chart_label(self, words: str, dimension: str) -> str:
-        return f"{words} ({self.chart[dimension]})"
+        return f"{words} ({say.chart_unit(dimension, self.primary)[0]})"
 
     def length_unit(self) -> tuple[str, float]:
-        return self.chart["length"], self._per_unit["length"]
+        return say.chart_unit("length", self.primary)
 
 
 def pct(fraction: float | None, signed: bool = False) -> str:
-    if fraction is None or not math.isfinite(fraction):
-        return NONE
-    return f"{fraction * 100:+.1f} %" if signed else f"{fraction * 100:.1f} %"
+    return md(say.percent(fraction, signed))
 
 
 def ratio(value: float | None) -> str:
-    return NONE if value is None else f"{value:.2f} : 1"
+    return md(say.ratio(value))
 
 
 def heading(title: str) -> str:
@@ -139,28 +123,36 @@ def by_date(builds: Sequence[Build]) -> list[Build]:
 
 # --- section tables ---------------------------------------------------------------------
 
-def section_rows(section: Any, show: Display) -> list[list[str]]:
-    """One row per known field of a record section (Gearbox, Clutch, Master, ...)."""
+def section_rows(section: object, show: Display, name: str) -> list[list[str]]:
+    """One row per known field of a record section `name` (gearbox, clutch, master, ...),
+    labelled and shown as the field table declares."""
     rows = []
     for f in dataclasses.fields(section):
         value = getattr(section, f.name)
-        if value is None or f.name in ("part", "layout"):
+        key = f"{name}.{f.name}"
+        if value is None or f.name in ("part", "layout") or key not in fields.FIELDS:
             continue
-        name = md(FIELD_WORDS.get(f.name, f.name.replace("_", " ")))
-        if f.name in FIELD_DIMENSIONS:
-            rows.append([name, show.q(value, FIELD_DIMENSIONS[f.name])])
-        elif f.name == "load_curve":
-            pairs = "; ".join(f"{show.q(t, 'length')} at {show.q(load, 'force')}" for t, load in value)
-            rows.append([name, pairs])
+        field = fields.FIELDS[key]
+        label = md(field.label)
+        if field.kind == fields.QUANTITY:
+            rows.append([label, show.q(value, field.dimension)])
+        elif field.kind == fields.CURVE:
+            travel, load = field.children
+            pairs = "; ".join(f"{show.q(t, travel.dimension)} at {show.q(f_, load.dimension)}"
+                              for t, f_ in value)
+            rows.append([label, pairs])
         else:
-            rows.append([name, md(value)])
+            rows.append([label, md(value)])
     layout = getattr(section, "layout", None)
     if layout is not None:
-        for point in ("pivot", "pad", "clevis", "pushrod_seat"):
-            x, y = getattr(layout, point)
-            rows.append([md(f"layout {FIELD_WORDS.get(point, point)} (x, y)"),
-                         f"{show.q(x, 'length')}, {show.q(y, 'length')}"])
-        rows.append([md("layout rotation to stop"), show.q(layout.rotation_to_stop, "angle")])
+        for point in fields.FIELDS["pedal.layout"].children:
+            value = getattr(layout, point.name)
+            if point.kind == fields.POINT:
+                x, y = value
+                rows.append([md(f"layout {point.label} (x, y)"),
+                             f"{show.q(x, point.dimension)}, {show.q(y, point.dimension)}"])
+            else:
+                rows.append([md(f"layout {point.label}"), show.q(value, point.dimension)])
     return rows
 
 
@@ -171,13 +163,13 @@ class SiteData:
     """The Analysis with the look-ups every page needs, computed once. Every build has a
     sizing, deltas and a prediction: analyse() refuses a shop with a build it cannot size."""
 
-    analysis: Any
+    analysis: Analysis
     show: Display
     builds: list[Build]
     used_by: dict[tuple[str, str], list[Build]]
 
     @classmethod
-    def of(cls, analysis: Any) -> "SiteData":
+    def of(cls, analysis: Analysis) -> SiteData:
         builds = sorted(analysis.shop.builds, key=lambda b: b.id)
         used_by: dict[tuple[str, str], list[Build]] = defaultdict(list)
         for build in builds:
@@ -189,17 +181,17 @@ class SiteData:
     def rules(self) -> ShopRules:
         return self.analysis.shop.rules
 
-    def sizing(self, build_id: str):
+    def sizing(self, build_id: str) -> Sizing:
         return self.analysis.sizings[build_id]
 
-    def deltas(self, build_id: str):
+    def deltas(self, build_id: str) -> Deltas:
         return self.analysis.deltas[build_id]
 
-    def prediction(self, build_id: str):
+    def prediction(self, build_id: str) -> Prediction:
         return self.analysis.predictions[build_id]
 
 
-def generated_pages(analysis: Any, progress: Callable[[int, int], None] | None = None
+def generated_pages(analysis: Analysis, progress: Callable[[int, int], None] | None = None
                     ) -> Iterator[tuple[str, str]]:
     """Every generated file for the docs dir as (relative posix path, text)."""
     data = SiteData.of(analysis)
@@ -269,31 +261,12 @@ def effort_scatter(data: SiteData) -> str:
     return chart.render()
 
 
-def combination_key(build: Build, show: Display, pedal_ratio: float) -> tuple[str, str, str]:
-    """Master / slave / pedal as the reference shows them: part id, or the inline size."""
-    master = build.master.part or f"{units.show(build.master.bore, 'length', show.primary)} bore"
-    if build.slave.part:
-        slave = build.slave.part
-    elif build.slave.bore is not None:
-        slave = f"{units.show(build.slave.bore, 'length', show.primary)} bore"
-    else:
-        slave = f"{units.show(build.slave.area, 'area', show.primary)} piston"
-    pedal = build.pedal.part or f"inline, {pedal_ratio:.1f} : 1"
-    return master, slave, pedal
-
-
-def _combo_cell(kind: str, build: Build, text: str) -> str:
-    part_id = getattr(getattr(build, PART_KINDS[kind][0]), "part", None)
+def _part_or(kind: str, part_id: str | None, text: str) -> str:
     return part_link(kind, part_id, "") if part_id else md(text)
 
 
 def reference_page(data: SiteData) -> str:
-    groups: dict[tuple[str, str], dict[tuple[str, str, str], list[Build]]] = defaultdict(
-        lambda: defaultdict(list))
-    for b in data.builds:
-        if b.status in ("verified", "rejected"):
-            key = combination_key(b, data.show, data.sizing(b.id).ratio_pedal)
-            groups[(b.gearbox.family, b.gearbox.fork_tip_moves)][key].append(b)
+    groups = data.analysis.reference
     out = [heading("Fitment reference"),
            "Master, slave and pedal combinations this shop has finished, by gearbox family and "
            "the way the fork tip moves. Only verified builds (checked on the car) and rejected "
@@ -307,29 +280,32 @@ def reference_page(data: SiteData) -> str:
            "shop's cars. Check every part against its maker's specification before ordering."]
     if not groups:
         out.append("No verified or rejected builds yet.")
-    for family, direction in sorted(groups):
+    for (family, direction), combos in groups.items():
         out.append(f"## {md(family)} \u2014 {md(FORK_WORDS.get(direction, direction))}")
-        rows = []
-        for key, members in sorted(groups[(family, direction)].items()):
-            first = members[0]
-            efforts = [e for e in map(measured_effort, members) if e is not None]
-            least_margin = min(data.sizing(m.id).margin for m in members)
-            failed = sum(m.status == "rejected" for m in members)
-            ok = len(members) - failed
-            if failed and ok:
-                result = f"**\u2718 mixed**: {ok} verified, {failed} failed"
-            elif failed:
-                result = f"**\u2718 failed** ({failed})"
-            else:
-                result = f"\u2714 verified ({ok})"
-            rows.append([result, _combo_cell("masters", first, key[0]),
-                         _combo_cell("slaves", first, key[1]), _combo_cell("pedals", first, key[2]),
-                         data.show.q(statistics.median(efforts) if efforts else None, "force"),
-                         pct(least_margin, signed=True),
-                         ", ".join(build_link(m.id, "") for m in members)])
         out.append(table(["Result", "Master", "Slave", "Pedal", "Measured effort (median)",
-                          "Travel margin (least)", "Builds"], rows))
+                          "Travel margin (least)", "Builds"],
+                         [_reference_row(data, combo) for combo in combos]))
     return "\n\n".join(out) + "\n"
+
+
+def _reference_row(data: SiteData, combo: Combination) -> list[str]:
+    if combo.rejected and combo.verified:
+        result = f"**\u2718 mixed**: {combo.verified} verified, {combo.rejected} failed"
+    elif combo.rejected:
+        result = f"**\u2718 failed** ({combo.rejected})"
+    else:
+        result = f"\u2714 verified ({combo.verified})"
+    slave = (f"{say.quantity(combo.slave_bore, 'length', data.show.primary)} bore"
+             if combo.slave_bore is not None
+             else f"{say.quantity(combo.slave_area, 'area', data.show.primary)} piston")
+    return [result,
+            _part_or("masters", combo.master_part,
+                     f"{say.quantity(combo.master_bore, 'length', data.show.primary)} bore"),
+            _part_or("slaves", combo.slave_part, slave),
+            _part_or("pedals", combo.pedal_part, f"{say.ratio(combo.pedal_ratio)} pedal"),
+            data.show.q(combo.median_measured_effort, "force"),
+            pct(combo.least_margin, signed=True),
+            ", ".join(build_link(b.id, "") for b in combo.builds)]
 
 
 def builds_index(data: SiteData) -> str:
@@ -359,7 +335,8 @@ def parts_index(data: SiteData) -> str:
         for part_id, part in sorted(parts.items()):
             users = data.used_by.get((kind, part_id), [])
             rows.append([part_link(kind, part_id, "parts"), md(part.label),
-                         "; ".join(" ".join(r) for r in section_rows(part.section, data.show)[:3]),
+                         "; ".join(" ".join(r) for r in section_rows(part.section, data.show,
+                                                                     fields.PART_KINDS[kind])[:3]),
                          str(len(users)), str(sum(u.status == "verified" for u in users)),
                          str(sum(u.status == "rejected" for u in users))])
         out.append(table(["Part", "Label", "Key values", "Builds", "Verified", "Rejected"], rows))
@@ -378,7 +355,8 @@ def part_page(data: SiteData, part: Part) -> str:
     out = [heading(f"{title} {part.id}")]
     if part.label:
         out.append(md(part.label))
-    out.append(table(["Field", "Value"], section_rows(part.section, data.show)))
+    out.append(table(["Field", "Value"], section_rows(part.section, data.show,
+                                                      fields.PART_KINDS[part.kind])))
     out.append("## Where used")
     if rows:
         out.append(table(["Build", "Status", "Family", "Measured effort", "Effort delta",
@@ -392,10 +370,10 @@ def calibration_page(data: SiteData) -> str:
     cal = data.analysis.calibration
     groups = [cal.shop] + [cal.families[name] for name in sorted(cal.families)]
     effort_rows = [[md(g.name), str(g.n), pct(g.efficiency),
-                    _spread(g.efficiency_median, g.efficiency_mad), f"{g.weight:.2f}",
+                    _spread(g.efficiency_median, g.efficiency_mad), md(say.factor(g.weight)),
                     pct(g.loo_median_abs_err), pct(g.loo_p90_abs_err)] for g in groups]
     travel_rows = [[md(g.name), str(g.n_travel),
-                    NONE if g.travel_factor is None else f"{g.travel_factor:.3f}",
+                    md(say.factor(g.travel_factor)),
                     _spread(g.travel_factor_median, g.travel_factor_mad, percent=False)]
                    for g in groups]
     return "\n\n".join([
@@ -423,8 +401,8 @@ def _spread(median: float | None, mad: float | None, percent: bool = True) -> st
     if median is None:
         return NONE
     if percent:
-        return f"{median * 100:.1f} % \u00b1 {(mad or 0) * 100:.1f}"
-    return f"{median:.3f} \u00b1 {(mad or 0):.3f}"
+        return f"{pct(median)} \u00b1 {pct(mad or 0.0)}"
+    return f"{md(say.factor(median))} \u00b1 {md(say.factor(mad or 0.0))}"
 
 
 def calibration_charts(data: SiteData) -> Iterator[tuple[str, str]]:
@@ -460,7 +438,7 @@ def build_files(data: SiteData, build: Build) -> Iterator[tuple[str, str]]:
     yield f"builds/{name}.md", build_page(data, build, sizing, with_curve=bool(curve))
 
 
-def build_page(data: SiteData, build: Build, sizing: Any, with_curve: bool) -> str:
+def build_page(data: SiteData, build: Build, sizing: Sizing, with_curve: bool) -> str:
     show = data.show
     name = slug(build.id)
     out = [heading(build.id),
@@ -470,7 +448,7 @@ def build_page(data: SiteData, build: Build, sizing: Any, with_curve: bool) -> s
                    md(build.technician), md(build.vehicle)]])]
     if build.outcome:
         out.append(f"**Outcome:** {md(build.outcome)}")
-    out += flag_blocks(sizing)
+    out += flag_blocks(sizing, show.primary)
     out.append("## Computed against measured")
     out.append(result_table(data, build, sizing))
     out.append(prediction_text(data, build))
@@ -482,13 +460,11 @@ def build_page(data: SiteData, build: Build, sizing: Any, with_curve: bool) -> s
     out.append("## Ratios, travel, pressure and volume")
     out.append(engineering_table(data, build, sizing))
     out.append("## Inputs")
-    for title, section in (("Gearbox", build.gearbox), ("Clutch", build.clutch),
-                           ("Fork", build.fork), ("Master cylinder", build.master),
-                           ("Slave cylinder", build.slave), ("Line", build.line),
-                           ("Pedal", build.pedal), ("Measured on the car", build.measured)):
+    for declared in fields.SECTIONS:
+        section = getattr(build, declared.name)
         if section is not None:
-            out.append(f"### {title}")
-            out.append(table(["Field", "Value"], section_rows(section, show)))
+            out.append(f"### {declared.title}")
+            out.append(table(["Field", "Value"], section_rows(section, show, declared.name)))
     used = parts_of(build)
     if used:
         out.append("## Catalogue parts used")
@@ -502,17 +478,18 @@ def build_page(data: SiteData, build: Build, sizing: Any, with_curve: bool) -> s
     return "\n\n".join(out) + "\n"
 
 
-def flag_blocks(sizing: Any) -> list[str]:
+def flag_blocks(sizing: Sizing, primary: str) -> list[str]:
     blocks = []
     for flag in sizing.flags:
         kind, title = ("failure", "Fails a check") if flag.severity == "fail" else ("warning", "Warning")
-        blocks.append(f'!!! {kind} "{title}"\n    {md(flag.message)} ({md(flag.code)})')
+        blocks.append(f'!!! {kind} "{title}"\n    {md(say.flag_sentence(flag, primary))} '
+                      f'({md(flag.code)})')
     if not sizing.flags:
         blocks.append("No check flagged this build.")
     return blocks
 
 
-def result_table(data: SiteData, build: Build, sizing: Any) -> str:
+def result_table(data: SiteData, build: Build, sizing: Sizing) -> str:
     show, deltas = data.show, data.deltas(build.id)
     measured = build.measured
     effort_row = [f"Pedal effort at {pct(sizing.efficiency)} efficiency",
@@ -535,24 +512,25 @@ def result_table(data: SiteData, build: Build, sizing: Any) -> str:
 
 def prediction_text(data: SiteData, build: Build) -> str:
     prediction = data.prediction(build.id)
+    note = say.prediction_note(prediction)
     if prediction.effort is None:
-        return f"**Calibrated prediction:** {md(prediction.note or 'not enough history')}"
+        return f"**Calibrated prediction:** {md(note)}"
     text = f"**Calibrated prediction:** {data.show.q(prediction.effort, 'force')}"
     if prediction.interval is not None:
         lo, hi = prediction.interval
         text += f", likely between {data.show.q(lo, 'force')} and {data.show.q(hi, 'force')}"
-    text += f" \u2014 from {prediction.n_builds} builds ({md(prediction.basis)})"
-    if prediction.note:
-        text += f"; {md(prediction.note)}"
+    text += f" \u2014 from {md(say.basis_sentence(prediction.basis))}"
+    if note:
+        text += f"; {md(note)}"
     text += "."
     if prediction.slave_travel is not None:
         text += (f" After the shop's measured travel losses the slave moves "
                  f"{data.show.q(prediction.slave_travel, 'length')}, a bearing travel margin of "
-                 f"{prediction.travel_margin:+.1%}.")
+                 f"{pct(prediction.travel_margin, signed=True)}.")
     return text
 
 
-def engineering_table(data: SiteData, build: Build, sizing: Any) -> str:
+def engineering_table(data: SiteData, build: Build, sizing: Sizing) -> str:
     show, link, rules = data.show, sizing.linkage, data.rules
     ratings = [r for r in (build.master.rated_pressure, build.slave.rated_pressure) if r]
     rows = [
@@ -583,8 +561,9 @@ def similar_table(data: SiteData, build: Build) -> str:
     similar = data.analysis.similar[build.id]
     if not similar:
         return "No similar measured builds yet."
-    rows = [[build_link(s.id, "builds"), f"{s.distance:.2f}",
-             md("; ".join(s.differs)) or "nothing notable", md(s.status),
+    rows = [[build_link(s.id, "builds"), md(say.factor(s.distance)),
+             md(say.differences_text(s.differs, data.show.primary)) or "nothing notable",
+             md(s.status),
              data.show.q(s.measured_effort, "force"), md(s.outcome)] for s in similar]
     return ("Distance 0 is an identical build; each 1.0 is about one different category or a "
             "10 % difference in one size ([method](../method.md)).\n\n"
@@ -593,7 +572,7 @@ def similar_table(data: SiteData, build: Build) -> str:
 
 # --- per-build pictures -------------------------------------------------------------------
 
-def linkage_svg(data: SiteData, build: Build, sizing: Any) -> str:
+def linkage_svg(data: SiteData, build: Build, sizing: Sizing) -> str:
     link = sizing.linkage
     rest = (link.rest.pivot, link.rest.pad, link.rest.clevis, link.rest.pushrod_seat)
     stop = (link.stop.pivot, link.stop.pad, link.stop.clevis, link.stop.pushrod_seat)
@@ -603,7 +582,7 @@ def linkage_svg(data: SiteData, build: Build, sizing: Any) -> str:
                                data.show.length_unit(), f"{build.id}: {source}, to scale")
 
 
-def effort_curve_svg(data: SiteData, build: Build, sizing: Any,
+def effort_curve_svg(data: SiteData, build: Build, sizing: Sizing,
                      curve: tuple[tuple[float, float], ...]) -> str:
     show = data.show
     points = [(show.chart_value(t, "length"), show.chart_value(f, "force"))
@@ -626,8 +605,13 @@ def effort_curve_svg(data: SiteData, build: Build, sizing: Any,
     return chart.render()
 
 
-def method_appendix(calibration: str, similarity: str) -> str:
-    """The calibration and similarity sections appended to the hand-written method page,
-    in the history module's own words (project text), so page and code cannot drift."""
-    return (f"\n\n## Calibration\n\n{calibration.strip()}\n"
-            f"\n## How similar builds are found\n\n{similarity.strip()}\n")
+def method_appendix() -> str:
+    """The calibration, similarity and reference sections appended to the hand-written method
+    page: the history modules' own docstrings (project text), so page and code cannot drift."""
+    import inspect
+
+    from builder.history import calibration, reference, similar
+
+    return "".join(f"\n\n## {title}\n\n{inspect.getdoc(module).strip()}\n" for title, module in (
+        ("Calibration", calibration), ("How similar builds are found", similar),
+        ("How the fitment reference groups builds", reference)))

@@ -10,6 +10,7 @@ import math
 from dataclasses import dataclass, field
 from typing import ClassVar, Sequence
 
+from builder.presentation import percent
 from builder.site.escape import xml
 
 Point = tuple[float, float]
@@ -91,7 +92,7 @@ class XYChart:
         rows = [(s.name, s.color, "line" if s.kind == "line" else "dot") for s in self.series]
         rows += [(b.name, b.color, "band") for b in self.bands]
         if self.identity_band is not None:
-            rows.append((f"computed = measured (band \u00b1{self.identity_band:.0%})", INK, "line"))
+            rows.append((f"computed = measured (band \u00b1{percent(self.identity_band)})", INK, "line"))
         rows += [(m.name, m.color, "dash") for m in self.markers]
         return rows
 

@@ -3,7 +3,7 @@
 
 OUT_DIR becomes a records folder: shop.yaml and parts/ as in the demo shop, and
 builds/<year>/SY-<n>.yaml. Each build is invented with the demo generator's pieces
-(builder.demo): gearbox families with their fork directions, concentric slaves, catalogue
+(builder.demo.builds): gearbox families with their fork directions, concentric slaves, catalogue
 parts with overrides, inline sections, pedal layouts, load curves, measured sections made
 from the engine plus each family's invented losses, rejected builds and drafts. On top of
 that the mix leans further towards the heavier records (more layouts and inline clutches
@@ -21,7 +21,7 @@ import random
 import sys
 from pathlib import Path
 
-from builder import demo
+from builder.demo import builds, catalogue, files
 
 DEFAULT_SEED = 20250
 ID_PREFIX = "SY"
@@ -32,8 +32,8 @@ DRAFT_SHARE = 0.05
 EXTRA_LAYOUT_SHARE = 0.15  # pedals given a side-view layout, on top of the demo's own share
 EXTRA_INLINE_CLUTCH_SHARE = 0.25  # bench-measured clutches with a load curve
 EXTRA_INLINE_CYLINDER_SHARE = 0.2  # master or slave written out by hand
-FAMILY_WEIGHTS = [(f.code, f.builds) for f in demo.FAMILIES]
-RULES = demo.shop_rules()
+FAMILY_WEIGHTS = [(f.code, f.builds) for f in catalogue.FAMILIES]
+RULES = files.rules()
 LOG_STEPS = (
     "Customer brought the car in; pedal box and bell housing inspected.",
     "Measured the fork lengths off the car with the bell housing off.",
@@ -64,15 +64,15 @@ def _slot(rng: random.Random) -> tuple[dt.date, str, str, str]:
     date = START + dt.timedelta(days=rng.randrange(DAYS))
     roll = rng.random()
     if roll < REJECTED_SHARE:
-        family, trouble = demo.REJECTED[rng.randrange(len(demo.REJECTED))]
+        family, trouble = catalogue.REJECTED[rng.randrange(len(catalogue.REJECTED))]
         return date, "rejected", family, trouble
-    family = demo._weighted(rng, FAMILY_WEIGHTS)
+    family = builds._weighted(rng, FAMILY_WEIGHTS)
     if roll < REJECTED_SHARE + DRAFT_SHARE:
         return date, "draft", family, "steep pushrod" if rng.random() < 0.2 else ""
     return date, "verified" if rng.random() < 0.5 else "measured", family, ""
 
 
-def _richer(plan: demo.Plan, rng: random.Random) -> None:
+def _richer(plan: builds.Plan, rng: random.Random) -> None:
     """More layouts, bench-measured clutches and hand-written cylinders than the demo has."""
     if rng.random() < EXTRA_INLINE_CYLINDER_SHARE:
         plan.master_style = "inline"
@@ -80,11 +80,11 @@ def _richer(plan: demo.Plan, rng: random.Random) -> None:
         plan.slave_style = "inline"
     pedal = plan.sections["pedal"]
     if plan.trouble != "bottoms" and "layout" not in pedal.fields and rng.random() < EXTRA_LAYOUT_SHARE:
-        demo._add_layout(rng, pedal, plan.system, 0.0)
+        builds._add_layout(rng, pedal, plan.system, 0.0)
     if not plan.trouble and plan.sections["clutch"].part and rng.random() < EXTRA_INLINE_CLUTCH_SHARE:
-        clutch = demo._inline_clutch(rng, plan.system, heavy=False)
+        clutch = builds._inline_clutch(rng, plan.system, heavy=False)
         while "load_curve" not in clutch.fields:
-            clutch = demo._inline_clutch(rng, plan.system, heavy=False)
+            clutch = builds._inline_clutch(rng, plan.system, heavy=False)
         plan.sections["clutch"] = clutch
 
 
@@ -98,11 +98,11 @@ def _work_log(rng: random.Random, date: dt.date) -> str:
     return "\n".join(lines)
 
 
-def make_record(seed: int, n: int) -> demo.Record:
+def make_record(seed: int, n: int) -> files.Record:
     """Build n of the synthetic shop with this seed."""
     rng = random.Random(f"{seed}-{n}")
     date, status, family, trouble = _slot(rng)
-    rec, _ = demo.invent(rng, RULES, build_id(n), date, status, family, trouble, enrich=_richer)
+    rec, _ = builds.invent(rng, RULES, build_id(n), date, status, family, trouble, enrich=_richer)
     rec.notes += _work_log(rng, date) + "\n"
     return rec
 
@@ -110,7 +110,7 @@ def make_record(seed: int, n: int) -> demo.Record:
 def record_text(seed: int, n: int) -> tuple[str, str]:
     """(path relative to the records folder, file text) of build n."""
     rec = make_record(seed, n)
-    return demo.build_path(rec), demo.build_text(rec)
+    return files.build_path(rec), files.build_text(rec)
 
 
 def write_shop(out_dir: Path, count: int, seed: int = DEFAULT_SEED,
@@ -125,15 +125,15 @@ def write_shop(out_dir: Path, count: int, seed: int = DEFAULT_SEED,
         raise FileExistsError(f"{out_dir} is not empty")
     if texts is None:
         texts = [record_text(seed, n) for n in range(1, count + 1)]
-    demo.write_files(out_dir, demo.rules_files() | dict(texts[:count]))
+    files.write_files(out_dir, files.rules_files() | dict(texts[:count]))
     return out_dir
 
 
 def proposal_text(seed: int = DEFAULT_SEED) -> str:
     """A draft proposal (no measured section) for `fitment check`, outside any shop."""
     rng = random.Random(f"{seed}-proposal")
-    rec, _ = demo.invent(rng, RULES, "PR-0001", dt.date(2026, 2, 2), "draft", "QX-5", "")
-    return demo.build_text(rec)
+    rec, _ = builds.invent(rng, RULES, "PR-0001", dt.date(2026, 2, 2), "draft", "QX-5", "")
+    return files.build_text(rec)
 
 
 def main(argv: list[str] | None = None) -> int:

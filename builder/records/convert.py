@@ -1,8 +1,7 @@
-"""Record fields: their dimensions, plausible ranges, and conversion to builder.model sections.
+"""Converting record values to builder.model sections, every problem collected and located.
 
-PLAUSIBLE is the table of accepted ranges, keyed by field path. The ranges are sanity limits
-for passenger-car and light-truck clutch hydraulics (common practice, no source): they catch
-typing slips such as `75 in` for a bore, `0 in` or a value in the wrong unit, not bad designs.
+Which fields exist, their dimensions and plausible ranges come from the field table,
+builder.fields; the words of a problem come from builder.presentation.
 """
 from __future__ import annotations
 
@@ -13,49 +12,18 @@ import math
 import re
 
 from builder import model
+from builder.fields import (CHOICE, CURVE, FIELDS, LAYOUT, PART_KINDS, POINT, QUANTITY, SECTION,
+                            SECTIONS, TEXT)
+from builder.presentation import accepted_range, quantity_message
 from builder.problems import Problem
-from builder.records._schema import dotted, quantity_message, quantity_patterns, schema
+from builder.records._schema import dotted, quantity_patterns
 from builder.records._yaml import Located, NeedsCare
-from builder.units import QuantityError, check_range, parse_quantity, show
+from builder.units import QuantityError, check_range, parse_quantity
 
-# field path -> (dimension, lowest, highest); a negative lowest allows negative values
-_RANGES: dict[str, tuple[str, str, str]] = {
-    "clutch.release_load": ("force", "100 N", "20 kN"),
-    "clutch.release_travel": ("length", "1 mm", "30 mm"),
-    "clutch.clearance": ("length", "0 mm", "20 mm"),
-    "clutch.load_curve.travel": ("length", "0 mm", "60 mm"),
-    "clutch.load_curve.load": ("force", "0 N", "20 kN"),
-    "fork.pivot_to_slave": ("length", "10 mm", "600 mm"),
-    "fork.pivot_to_bearing": ("length", "10 mm", "600 mm"),
-    "master.bore": ("length", "3 mm", "60 mm"),
-    "master.stroke": ("length", "3 mm", "100 mm"),
-    "master.rated_pressure": ("pressure", "0.5 MPa", "50 MPa"),
-    "slave.bore": ("length", "3 mm", "100 mm"),
-    "slave.piston_area": ("area", "10 mm^2", "10000 mm^2"),
-    "slave.stroke": ("length", "3 mm", "100 mm"),
-    "slave.rated_pressure": ("pressure", "0.5 MPa", "50 MPa"),
-    "line.length": ("length", "50 mm", "10 m"),
-    "pedal.pivot_to_pad": ("length", "50 mm", "1000 mm"),
-    "pedal.pivot_to_clevis": ("length", "5 mm", "300 mm"),
-    "pedal.pad_travel": ("length", "10 mm", "400 mm"),
-    "pedal.layout.point": ("length", "-2 m", "2 m"),
-    "pedal.layout.rotation_to_stop": ("angle", "1 deg", "90 deg"),
-    "measured.pedal_effort": ("force", "5 N", "2 kN"),
-    "measured.slave_travel": ("length", "0 mm", "100 mm"),
-    "measured.pad_travel_to_release": ("length", "0 mm", "400 mm"),
-    "measured.floor_gap": ("length", "0 mm", "400 mm"),
-    "shop.effort_band": ("force", "10 N", "1 kN"),
-    "shop.min_travel_margin": ("fraction", "0 %", "100 %"),
-    "shop.latest_release_point": ("fraction", "10 %", "100 %"),
-    "shop.default_efficiency": ("fraction", "10 %", "100 %"),
-    "shop.hose_expansion": ("hose_expansion", "0 mL/m/MPa", "10 mL/m/MPa"),
-    "shop.fluid_bulk_modulus": ("pressure", "0.1 GPa", "10 GPa"),
-    "shop.line_bore": ("length", "1 mm", "20 mm"),
-    "shop.max_pushrod_angle": ("angle", "0.5 deg", "45 deg"),
-}
+# field key -> (dimension, lowest, highest) in SI, for every quantity the records hold
 PLAUSIBLE: dict[str, tuple[str, float, float]] = {
-    key: (dimension, parse_quantity(low, dimension, signed=True), parse_quantity(high, dimension))
-    for key, (dimension, low, high) in _RANGES.items()
+    key: (field.dimension, *field.bounds)
+    for key, field in FIELDS.items() if field.kind in (QUANTITY, POINT)
 }
 # PLAUSIBLE key -> search of the schema pattern a string for that field must match
 _FORMS = {
@@ -67,7 +35,7 @@ _accepted: dict[tuple[str, str], float] = {}  # (text, PLAUSIBLE key) -> SI: the
 _MAX_ACCEPTED = 16_384
 
 
-class Reporter:
+class ProblemCollector:
     """Collects located problems for one file; on the fast path (no positions) it raises NeedsCare.
 
     `bad` holds the paths the schema already reported; conversion skips them, and a later
@@ -98,46 +66,27 @@ class Reporter:
         return not self.bad or not any(where[: len(bad)] == bad or bad[: len(where)] == where for bad in self.bad)
 
 
-TEXT, CHOICE, QUANTITY, CURVE, LAYOUT = "text", "choice", "quantity", "curve", "layout"
+# section -> {key: kind}: what convert_fields reads
 SECTION_FIELDS: dict[str, dict[str, str]] = {
-    "gearbox": {"family": TEXT, "variant": TEXT, "fork_tip_moves": CHOICE},
-    "clutch": {"release_load": QUANTITY, "release_travel": QUANTITY, "clearance": QUANTITY, "load_curve": CURVE},
-    "fork": {"pivot_to_slave": QUANTITY, "pivot_to_bearing": QUANTITY},
-    "master": {"bore": QUANTITY, "stroke": QUANTITY, "rated_pressure": QUANTITY},
-    "slave": {"kind": CHOICE, "bore": QUANTITY, "piston_area": QUANTITY, "stroke": QUANTITY,
-              "rated_pressure": QUANTITY, "bracket": TEXT},
-    "line": {"length": QUANTITY, "hose": CHOICE, "fluid": CHOICE},
-    "pedal": {"pivot_to_pad": QUANTITY, "pivot_to_clevis": QUANTITY, "pad_travel": QUANTITY,
-              "pushrod": TEXT, "layout": LAYOUT},
-    "measured": {"pedal_effort": QUANTITY, "slave_travel": QUANTITY, "pad_travel_to_release": QUANTITY,
-                 "floor_gap": QUANTITY, "method": TEXT},
+    section.name: {field.name: field.kind for field in section.fields} for section in SECTIONS
 }
 SECTION_CLASS = {
     "gearbox": model.Gearbox, "clutch": model.Clutch, "fork": model.Fork, "master": model.Master,
     "slave": model.Slave, "line": model.Line, "pedal": model.Pedal, "measured": model.Measured,
 }
 _CLASS_FIELDS = {cls: tuple(f.name for f in dataclasses.fields(cls)) for cls in SECTION_CLASS.values()}
-CATALOGUE_KIND = {"gearbox": "gearboxes", "clutch": "clutches", "master": "masters", "slave": "slaves",
-                  "pedal": "pedals"}
-SECTION_OF_KIND = {kind: section for section, kind in CATALOGUE_KIND.items()}
-
-
-def _required(section: str) -> tuple[str, ...]:
-    """Keys a section written out in full needs, as the build schema says: its `required`, or
-    those of its anyOf branch other than {part} (the either-or keys are make_section's)."""
-    node = schema("build")["properties"][section]
-    inline = [branch for branch in node.get("anyOf", ()) if branch["required"] != ["part"]]
-    return tuple((inline[0] if inline else node).get("required", ()))
-
-
-_REQUIRED = {section: _required(section) for section in SECTION_FIELDS}
-_ALTERNATIVES = {"bore": "piston_area", "piston_area": "bore"}  # a slave gives one of the two
-_LAYOUT_POINTS = ("pivot", "pad", "clevis", "pushrod_seat")
+CATALOGUE_KIND = {section: kind for kind, section in PART_KINDS.items()}
+SECTION_OF_KIND = dict(PART_KINDS)
+_REQUIRED = {section.name: section.required for section in SECTIONS}
+# a key of a one-of pair -> the keys it replaces when a build overrides a part (bore, area)
+_ONE_OF = {key: tuple(k for k in s.one_of if k != key) for s in SECTIONS for key in s.one_of}
+_LAYOUT = FIELDS["pedal.layout"]
+_LAYOUT_POINTS = tuple(field.name for field in _LAYOUT.children if field.kind == POINT)
 _DISTINCT_POINTS = (("pivot", "pad"), ("pivot", "clevis"), ("clevis", "pushrod_seat"))
 _LEAST_DISTANCE = 1e-3  # m
 
 
-def quantity(value: object, key: str, report: Reporter, where: tuple) -> float | None:
+def quantity(value: object, key: str, report: ProblemCollector, where: tuple) -> float | None:
     """Convert one quantity for field path `key` (a PLAUSIBLE key); report and return None if bad.
 
     A string must also match the schema's pattern for the field: the fast path's schema leaves
@@ -149,15 +98,15 @@ def quantity(value: object, key: str, report: Reporter, where: tuple) -> float |
         if known is not None:
             return known
     dimension, low, high = PLAUSIBLE[key]
-    if is_text and not _FORMS[key](value):
-        report(where, quantity_message(value, dimension, low < 0) + accepted(key))
-        return None
     try:
+        if is_text and not _FORMS[key](value):
+            parse_quantity(value, dimension, signed=low < 0)  # its own reason when it has one
+            raise QuantityError("form", dimension, value)
         result = parse_quantity(value, dimension, signed=low < 0)
         check_range(result, low, high, dimension, value)
     except QuantityError as error:
-        message = str(error)
-        report(where, message if "plausible range" in message else message + accepted(key))
+        message = quantity_message(error)
+        report(where, message if error.reason == "out-of-range" else message + accepted(key))
         return None
     if is_text:
         if len(_accepted) >= _MAX_ACCEPTED:
@@ -170,14 +119,15 @@ def accepted(key: str | None) -> str:
     """"; this field accepts 0.118 in (3 mm) to 2.362 in (60 mm)" for a PLAUSIBLE key, else ""."""
     if key not in PLAUSIBLE:
         return ""
-    dimension, low, high = PLAUSIBLE[key]
-    return f"; this field accepts {show(low, dimension)} to {show(high, dimension)}"
+    return accepted_range(*PLAUSIBLE[key])
 
 
 def range_key(schema: str, where: tuple, data: object) -> str | None:
     """The PLAUSIBLE key of the value at `where` in a document of `schema`, or None."""
     if schema == "shop":
-        return f"shop.{where[0]}" if where and isinstance(where[0], str) else None
+        steps = [step for step in where if isinstance(step, str)]
+        key = ".".join(["shop", *steps])
+        return key if key in PLAUSIBLE else None
     if schema == "parts":
         kind = data.get("kind") if isinstance(data, dict) else None
         section = SECTION_OF_KIND.get(kind) if isinstance(kind, str) else None
@@ -185,11 +135,13 @@ def range_key(schema: str, where: tuple, data: object) -> str | None:
     if len(where) < 2:
         return None
     section, name, *rest = where
-    if name == "load_curve" and len(rest) == 2 and rest[1] in (0, 1):
-        return f"clutch.load_curve.{('travel', 'load')[rest[1]]}"
-    if name == "layout" and rest:
-        return "pedal.layout.rotation_to_stop" if rest[0] == "rotation_to_stop" else "pedal.layout.point"
-    return f"{section}.{name}"
+    key = f"{section}.{name}"
+    field = FIELDS.get(key)
+    if field is not None and field.kind == CURVE and len(rest) == 2 and rest[1] in (0, 1):
+        return field.children[rest[1]].key
+    if field is not None and field.kind == LAYOUT and rest and isinstance(rest[0], str):
+        key = f"{key}.{rest[0]}"
+    return key if key in PLAUSIBLE else None
 
 
 def text(value: object) -> str | None:
@@ -197,7 +149,7 @@ def text(value: object) -> str | None:
     return None if value is None else str(value)
 
 
-def date(value: object, report: Reporter, where: tuple) -> _dt.date | None:
+def date(value: object, report: ProblemCollector, where: tuple) -> _dt.date | None:
     """A YYYY-MM-DD string (or a date object from another YAML loader) as a date."""
     if value is None or (isinstance(value, _dt.date) and not isinstance(value, _dt.datetime)):
         return value
@@ -208,7 +160,7 @@ def date(value: object, report: Reporter, where: tuple) -> _dt.date | None:
         return None
 
 
-def convert_fields(section: str, raw: dict, report: Reporter, where: tuple) -> dict:
+def convert_fields(section: str, raw: dict, report: ProblemCollector, where: tuple) -> dict:
     """The section's given fields in SI (missing ones absent); `part` and unknown keys skipped."""
     fields = {}
     kinds = SECTION_FIELDS[section]
@@ -234,7 +186,9 @@ def merge(part_fields: dict, overrides: dict) -> dict:
     """Part fields, then the build's: a slave bore replaces a part's piston_area and vice versa."""
     merged = dict(part_fields)
     for key in overrides:
-        merged.pop(_ALTERNATIVES.get(key, ""), None)
+        if key in _ONE_OF:
+            for other in _ONE_OF[key]:
+                merged.pop(other, None)
     merged.update(overrides)
     return merged
 
@@ -257,16 +211,22 @@ def referenced(part: model.Part):
     return dataclasses.replace(part.section, part=part.id)
 
 
-def make_section(name: str, fields: dict, report: Reporter, where: tuple, part: str | None = None):
+def make_section(name: str, fields: dict, report: ProblemCollector, where: tuple, part: str | None = None):
     """The model section from converted fields, or None after reporting what is missing."""
+    section = SECTION[name]
     missing = {key: "" for key in _REQUIRED[name] if key not in fields}
-    if name == "slave" and "bore" not in fields and "piston_area" not in fields:
-        missing["bore"] = " (or piston_area)"
-    if name == "slave" and "bore" in fields and "piston_area" in fields:
-        report(where, "give either bore or piston_area, not both")
-        return None
-    if name == "pedal" and "layout" not in fields:
-        missing |= {key: " (or give a layout)" for key in ("pivot_to_pad", "pivot_to_clevis") if key not in fields}
+    if section.one_of:
+        given = [key for key in section.one_of if key in fields]
+        if len(given) > 1:
+            report(where, f"give either {' or '.join(section.one_of)}, not both")
+            return None
+        if not given:
+            first, *others = section.one_of
+            missing[first] = f" (or {' or '.join(others)})"
+    if section.either and not any(all(key in fields for key in keys) for keys in section.either):
+        *others, main = section.either
+        alternative = " or ".join(" and ".join(keys) for keys in others)
+        missing |= {key: f" (or give a {alternative})" for key in main if key not in fields}
     place = " here or in the catalogue part" if part else ""
     for key, alternative in missing.items():
         report(where, f"missing key {key!r}{alternative}{place}", field=dotted(where + (key,)))
@@ -280,14 +240,13 @@ def make_section(name: str, fields: dict, report: Reporter, where: tuple, part: 
     return cls(**values)
 
 
-def _load_curve(raw: list, report: Reporter, where: tuple) -> tuple | None:
+def _load_curve(raw: list, report: ProblemCollector, where: tuple) -> tuple | None:
     points = []
-    for index, (travel, load) in enumerate(raw):
+    columns = [column.key for column in FIELDS["clutch.load_curve"].children]
+    for index, pair in enumerate(raw):
         at = where + (index,)
-        point = (
-            quantity(travel, "clutch.load_curve.travel", report, at + (0,)),
-            quantity(load, "clutch.load_curve.load", report, at + (1,)),
-        )
+        point = tuple(quantity(value, key, report, at + (i,))
+                      for i, (value, key) in enumerate(zip(pair, columns)))
         if None in point:
             return None
         if points and point[0] <= points[-1][0]:
@@ -297,15 +256,13 @@ def _load_curve(raw: list, report: Reporter, where: tuple) -> tuple | None:
     return tuple(points)
 
 
-def _layout(raw: dict, report: Reporter, where: tuple) -> model.PedalLayout | None:
+def _layout(raw: dict, report: ProblemCollector, where: tuple) -> model.PedalLayout | None:
     values = {}
     for name in _LAYOUT_POINTS:
         x, y = raw[name]
         at = where + (name,)
-        values[name] = (
-            quantity(x, "pedal.layout.point", report, at + (0,)),
-            quantity(y, "pedal.layout.point", report, at + (1,)),
-        )
+        key = f"pedal.layout.{name}"
+        values[name] = (quantity(x, key, report, at + (0,)), quantity(y, key, report, at + (1,)))
     rotation = quantity(raw["rotation_to_stop"], "pedal.layout.rotation_to_stop", report,
                         where + ("rotation_to_stop",))
     if rotation is None or any(None in point for point in values.values()):

@@ -1,27 +1,29 @@
-"""Row tables for `fitment report` and `fitment calibration`: text, CSV or JSON."""
+"""`fitment report` and `fitment calibration`: rows of SI-derived columns, rendered as a
+text table, CSV or JSON."""
 from __future__ import annotations
 
 import csv
 import io
 import json
+from typing import TYPE_CHECKING
+
+from builder.presentation import in_unit
+
+if TYPE_CHECKING:
+    from builder.history import Analysis
 
 # Cells a spreadsheet would read as a formula are prefixed with a quote (OWASP CSV injection).
 _FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 
 
-def scaled(factor: float, digits: int, value: float | None) -> float | None:
-    """value * factor rounded to `digits`, or None when unknown (SI to a display unit)."""
-    return None if value is None else round(value * factor, digits)
-
-
-def report_rows(analysis) -> list[dict]:
+def report_rows(analysis: Analysis) -> list[dict]:
     """One row per build, newest first, in SI-derived columns named with their unit."""
     rows = []
     builds = sorted(analysis.shop.builds, key=lambda b: (str(b.date or ""), b.id), reverse=True)
     for build in builds:
         sizing = analysis.sizings[build.id]
-        prediction = analysis.predictions.get(build.id)
-        deltas = analysis.deltas.get(build.id)
+        prediction = analysis.predictions[build.id]
+        deltas = analysis.deltas[build.id]
         measured = build.measured
         rows.append({
             "id": build.id,
@@ -29,24 +31,24 @@ def report_rows(analysis) -> list[dict]:
             "status": build.status,
             "family": build.gearbox.family,
             "fork_tip_moves": build.gearbox.fork_tip_moves,
-            "master_bore_mm": scaled(1e3, 2, build.master.bore),
-            "slave_bore_mm": scaled(1e3, 2, build.slave.bore),
-            "slave_area_mm2": scaled(1e6, 1, sizing.slave_area),
-            "pedal_ratio": scaled(1.0, 2, sizing.ratio_pedal),
-            "hydraulic_ratio": scaled(1.0, 3, sizing.ratio_hydraulic),
-            "fork_ratio": scaled(1.0, 3, sizing.ratio_fork),
-            "overall_ratio": scaled(1.0, 2, sizing.ratio_overall),
-            "computed_effort_N": scaled(1.0, 1, sizing.effort_predicted),
-            "calibrated_effort_N": scaled(1.0, 1, prediction.effort if prediction else None),
-            "measured_effort_N": scaled(1.0, 1, measured.pedal_effort if measured else None),
-            "effort_delta_pct": scaled(100.0, 1, deltas.effort if deltas else None),
-            "travel_margin_pct": scaled(100.0, 1, sizing.margin),
+            "master_bore_mm": in_unit(build.master.bore, "mm", 2),
+            "slave_bore_mm": in_unit(build.slave.bore, "mm", 2),
+            "slave_area_mm2": in_unit(sizing.slave_area, "mm^2", 1),
+            "pedal_ratio": in_unit(sizing.ratio_pedal, "1", 2),
+            "hydraulic_ratio": in_unit(sizing.ratio_hydraulic, "1", 3),
+            "fork_ratio": in_unit(sizing.ratio_fork, "1", 3),
+            "overall_ratio": in_unit(sizing.ratio_overall, "1", 2),
+            "computed_effort_N": in_unit(sizing.effort_predicted, "N", 1),
+            "calibrated_effort_N": in_unit(prediction.effort, "N", 1),
+            "measured_effort_N": in_unit(measured.pedal_effort if measured else None, "N", 1),
+            "effort_delta_pct": in_unit(deltas.effort, "%", 1),
+            "travel_margin_pct": in_unit(sizing.margin, "%", 1),
             "flags": " ".join(f.code for f in sizing.flags),
         })
     return rows
 
 
-def calibration_rows(analysis) -> list[dict]:
+def calibration_rows(analysis: Analysis) -> list[dict]:
     """Shop-wide first, then each gearbox family by name."""
     calibration = analysis.calibration
     groups = [("shop-wide", calibration.shop)] + sorted(calibration.families.items())
@@ -54,13 +56,13 @@ def calibration_rows(analysis) -> list[dict]:
         {
             "group": name,
             "builds": group.n,
-            "efficiency_pct": scaled(100.0, 1, group.efficiency),
-            "efficiency_spread_pct": scaled(100.0, 1, group.efficiency_mad),
-            "travel_factor_pct": scaled(100.0, 1, group.travel_factor),
-            "travel_spread_pct": scaled(100.0, 1, group.travel_factor_mad),
-            "own_weight_pct": scaled(100.0, 1, group.weight),
-            "loo_median_err_pct": scaled(100.0, 1, group.loo_median_abs_err),
-            "loo_p90_err_pct": scaled(100.0, 1, group.loo_p90_abs_err),
+            "efficiency_pct": in_unit(group.efficiency, "%", 1),
+            "efficiency_spread_pct": in_unit(group.efficiency_mad, "%", 1),
+            "travel_factor_pct": in_unit(group.travel_factor, "%", 1),
+            "travel_spread_pct": in_unit(group.travel_factor_mad, "%", 1),
+            "own_weight_pct": in_unit(group.weight, "%", 1),
+            "loo_median_err_pct": in_unit(group.loo_median_abs_err, "%", 1),
+            "loo_p90_err_pct": in_unit(group.loo_p90_abs_err, "%", 1),
         }
         for name, group in groups
     ]

@@ -1,0 +1,356 @@
+"""Inventing the demo's builds: a plan per build, the first catalogue master and slave that
+behave as the record says, then the measured section and the notes."""
+from __future__ import annotations
+
+import datetime as dt
+import math
+import random
+import textwrap
+from dataclasses import dataclass
+
+from builder import model as m
+from builder.demo.catalogue import (BRACKETS, CATALOGUE, DRAFTS, EFFORT_NOISE, FAMILIES, FAMILY,
+                                    FAMILY_EFFICIENCY, FAMILY_TRAVEL_FACTOR, FLUID_WEIGHTS,
+                                    GAP_NOISE, GOOD_EFFORT_N, GOOD_OUTCOMES, GOOD_REAL_MARGIN,
+                                    HEAVY_EFFORT_N, HOSE_WEIGHTS, PARTS, REJECTED, SEED,
+                                    TECHNICIANS, TRAVEL_NOISE, CatalogueEntry, Family, Q, force,
+                                    length, q, restate, _number)
+from builder.demo.files import Record, Section, load
+from builder.demo.files import rules as demo_rules
+from builder.engine import Sizing, size_build
+from builder.units import INCH, POUND_FORCE
+
+def _weighted(rng: random.Random, table) -> str:
+    return rng.choices([k for k, _ in table], [w for _, w in table])[0]
+
+
+def _pedal_layout(rng: random.Random, pedal: dict, system: str, misalign_deg: float) -> dict:
+    """A side view at rest that agrees with the pedal's lengths and pad travel.
+
+    Frame: x forward (towards the bulkhead), y up, pivot at the origin; the pedal swings
+    counter-clockwise to push the master forward. The bore axis follows the clevis's
+    chord through the swing, give or take a couple of degrees (plus misalign_deg).
+    """
+    r_pad, r_clevis = pedal["pivot_to_pad"].si, pedal["pivot_to_clevis"].si
+    swing_deg = round(math.degrees(pedal["pad_travel"].si / r_pad) * 2.0) / 2.0
+    swing = math.radians(swing_deg)
+    lean_pad = math.radians(rng.uniform(8.0, 18.0))
+    lean_clevis = swing / 2.0 + math.radians(rng.uniform(-3.0, 3.0))
+    pad = (-r_pad * math.sin(lean_pad), -r_pad * math.cos(lean_pad))
+    clevis = (-r_clevis * math.sin(lean_clevis), -r_clevis * math.cos(lean_clevis))
+    chord = lean_clevis - swing / 2.0  # angle of the clevis chord below the horizontal
+    axis = -chord + math.radians(rng.uniform(-2.0, 2.0) + misalign_deg)
+    rod = rng.uniform(4.5, 6.0) * INCH
+    seat = (clevis[0] + rod * math.cos(axis), clevis[1] + rod * math.sin(axis))
+
+    def point(p):
+        return tuple(length(v, system, in_places=2, mm_places=1) for v in p)
+
+    return {"pivot": point((0.0, 0.0)), "pad": point(pad), "clevis": point(clevis),
+            "pushrod_seat": point(seat), "rotation_to_stop": q(f"{swing_deg:g} deg")}
+
+
+def _add_layout(rng: random.Random, pedal: Section, system: str, misalign_deg: float) -> None:
+    """Give a pedal section a side-view layout (see _pedal_layout)."""
+    pedal.fields["layout"] = _pedal_layout(rng, pedal.resolved(), system, misalign_deg)
+    pedal.comments["layout"] = "side view at rest, x forward, y up"
+
+
+def _inline_clutch(rng: random.Random, system: str, heavy: bool) -> Section:
+    """A clutch the customer supplied, bench-measured, with a load curve half the time."""
+    load = rng.uniform(2.9, 3.4) * 1e3 if heavy else rng.uniform(1.35, 2.0) * 1e3
+    release = rng.uniform(6.0, 8.0) * 1e-3
+    clearance = rng.uniform(1.0, 1.5) * 1e-3
+    fields = {"release_load": q(f"{5 * round(load / POUND_FORCE / 5)} lbf" if system == "imperial"
+                                else f"{load / 1e3:.2f} kN"),
+              "release_travel": length(release, system),
+              "clearance": length(clearance, system)}
+    if heavy or rng.random() < 0.5:
+        peak, c, r = fields["release_load"], fields["clearance"].si, fields["release_travel"].si
+        shape = ((0.0, 0.0), (c + 0.3 * r, 0.87), (c + 0.6 * r, 1.0), (c + r, 0.8))
+        fields["load_curve"] = tuple(
+            (length(x, system), q(peak.text) if k == 1.0 else _scaled(peak, k))
+            for x, k in shape)
+    return Section(None, fields, {"release_load": "bench-measured on the press"})
+
+
+def _scaled(load: Q, k: float) -> Q:
+    magnitude, unit = load.text.split(" ")
+    places = 2 if unit == "kN" else 0
+    return q(f"{_number(float(magnitude) * k, places)} {unit}")
+
+
+def _inline_pedal(rng: random.Random, system: str) -> Section:
+    pad_len = rng.uniform(10.5, 12.5) * INCH
+    ratio = rng.uniform(5.0, 6.6)
+    travel = rng.uniform(5.6, 6.9) * INCH
+    fields = {"pivot_to_pad": length(pad_len, system, 2, 0),
+              "pivot_to_clevis": length(pad_len / ratio, system, 2, 1),
+              "pad_travel": length(travel, system, 1, 0),
+              "pushrod": "clevis pin, adjustable rod"}
+    return Section(None, fields)
+
+
+def _copy_inline(entry: CatalogueEntry, system: str) -> Section:
+    """A catalogue part's values written out by hand in the technician's units, no id."""
+    fields = dict(entry.fields)
+    fields["stroke"] = restate(fields["stroke"], system)
+    if "bore" in fields:
+        fields["bore"] = restate(fields["bore"], system, in_places=3, mm_places=2)
+    return Section(None, fields)
+
+
+@dataclass
+class Plan:
+    """Everything decided about a build before its master and slave are chosen."""
+
+    id: str
+    date: dt.date
+    status: str
+    family: Family
+    trouble: str  # "" for a good build or a plain draft; else what goes wrong
+    technician: str
+    system: str
+    vehicle: str
+    sections: dict
+    master_style: str  # part | limiter | inline
+    slave_style: str  # part | bracket | inline
+
+
+def _plan(rng: random.Random, ident: str, date: dt.date, status: str, family: Family,
+          trouble: str) -> Plan:
+    tech = rng.choice(sorted(TECHNICIANS))
+    system = TECHNICIANS[tech][0]
+    by_hand = rng.random() < 0.1  # nothing from the catalogue: every section inline
+    gearbox_id = rng.choice(family.gearboxes)
+    gearbox = (Section(gearbox_id) if rng.random() < 0.85 and not by_hand
+               else Section(None, dict(PARTS[gearbox_id].fields)))
+    if trouble == "effort":
+        clutch = _inline_clutch(rng, system, heavy=True)
+    elif by_hand or rng.random() < 0.2:
+        clutch = _inline_clutch(rng, system, heavy=False)
+    else:
+        clutch = Section(rng.choice(family.clutches))
+        catalogue = PARTS[clutch.part].fields
+        if "load_curve" not in catalogue and rng.random() < 0.2:
+            clutch.fields["release_load"] = _scaled(catalogue["release_load"],
+                                                    rng.uniform(0.94, 1.06))
+            clutch.comments["release_load"] = "this plate, bench-measured on the press"
+    fork = None
+    if family.forks:
+        to_slave, to_bearing = rng.choice(family.forks)
+        fork = Section(None, {"pivot_to_slave": restate(q(to_slave), system),
+                              "pivot_to_bearing": restate(q(to_bearing), system)})
+    if trouble == "bottoms":
+        pedal = Section(None, {"pivot_to_pad": length(11.5 * INCH, system, 2, 0),
+                               "pivot_to_clevis": length(11.5 * INCH / 4.5, system, 2, 1),
+                               "pad_travel": length(6.9 * INCH, system, 1, 0),
+                               "pushrod": "solid rod, welded clevis"})
+    else:
+        roll = rng.random()
+        pedal = (_inline_pedal(rng, system) if by_hand or roll < 0.2
+                 else Section(rng.choice(sorted(e.id for e in CATALOGUE["pedals"]))))
+        if trouble == "steep pushrod" or rng.random() < 0.3:
+            _add_layout(rng, pedal, system, 35.0 if trouble == "steep pushrod" else 0.0)
+    length_in = rng.randrange(24, 61, 2)
+    line = Section(None, {
+        "length": q(f"{length_in} in") if system == "imperial"
+        else q(f"{round(length_in * 25.4, -1):.0f} mm"),
+        "hose": _weighted(rng, HOSE_WEIGHTS), "fluid": _weighted(rng, FLUID_WEIGHTS)})
+    master_style = rng.choices(("part", "limiter", "inline"), (65, 10, 25))[0]
+    slave_style = rng.choices(("part", "bracket", "inline"), (30, 45, 25))[0]
+    if by_hand:
+        master_style = slave_style = "inline"
+    return Plan(ident, date, status, family, trouble, tech, system,
+                rng.choice(family.vehicles),
+                {"gearbox": gearbox, "clutch": clutch, "fork": fork, "pedal": pedal, "line": line},
+                master_style, slave_style)
+
+
+def _master_section(plan: Plan, entry: CatalogueEntry) -> Section:
+    if plan.master_style == "inline":
+        return _copy_inline(entry, plan.system)
+    if plan.master_style == "limiter" and entry.fields["stroke"].si > 1.3 * INCH:
+        return Section(entry.id, {"stroke": restate(q("1.25 in"), plan.system)},
+                       {"stroke": "stroke limiter fitted"})
+    return Section(entry.id)
+
+
+def _slave_section(plan: Plan, entry: CatalogueEntry, rng: random.Random) -> Section:
+    bracket = rng.choice(BRACKETS) if entry.fields["kind"] == "external" else None
+    if plan.slave_style == "inline":
+        section = _copy_inline(entry, plan.system)
+        if bracket:
+            section.fields["bracket"] = bracket
+        return section
+    if plan.slave_style == "bracket" and bracket:
+        return Section(entry.id, {"bracket": bracket})
+    return Section(entry.id)
+
+
+def _record(plan: Plan, master: Section, slave: Section) -> Record:
+    sections = dict(plan.sections)
+    sections["master"], sections["slave"] = master, slave
+    order = ("gearbox", "clutch", "fork", "master", "slave", "line", "pedal")
+    return Record(plan.id, plan.date, plan.status, plan.technician, plan.vehicle,
+                  {k: sections[k] for k in order})
+
+
+def _real(sizing: Sizing, family: str) -> tuple[float, float]:
+    """(real margin, real effort N) under the family's true losses."""
+    factor = FAMILY_TRAVEL_FACTOR[family]
+    return factor * (1.0 + sizing.margin) - 1.0, sizing.effort_ideal / FAMILY_EFFICIENCY[family]
+
+
+def _fits(plan: Plan, sizing: Sizing) -> bool:
+    """Whether a sizing behaves the way the plan's record says it did (or will)."""
+    fails = any(f.severity == "fail" for f in sizing.flags)
+    warns = {f.code for f in sizing.flags}
+    margin, effort = _real(sizing, plan.family.code)
+    trouble = plan.trouble
+    if trouble == "travel":
+        return 0.01 <= sizing.margin <= 0.10 and margin < -0.005 and not sizing.floor_gap
+    if trouble == "effort":
+        return (HEAVY_EFFORT_N[0] <= effort <= HEAVY_EFFORT_N[1] and not fails
+                and GOOD_REAL_MARGIN <= margin and sizing.margin <= 0.9)
+    if trouble == "bottoms":
+        return sizing.floor_gap >= 0.6 * INCH and margin < 0.0 and sizing.margin > -0.08
+    if trouble == "steep pushrod":
+        return "pushrod-off-axis" in warns and not fails
+    return (not fails and margin >= GOOD_REAL_MARGIN and sizing.margin <= 0.9
+            and GOOD_EFFORT_N[0] <= effort <= GOOD_EFFORT_N[1]
+            and "release-late" not in warns)
+
+
+def _choose(plan: Plan, rng: random.Random, rules: m.ShopRules) -> tuple[Record, Sizing] | None:
+    """Try catalogue master/slave pairs in a seeded order; keep the first that fits."""
+    kind = "external" if plan.family.forks else "concentric"
+    pairs = [(mc, sc) for mc in CATALOGUE["masters"] for sc in CATALOGUE["slaves"]
+             if sc.fields["kind"] == kind]
+    rng.shuffle(pairs)
+    for mc, sc in pairs:
+        rec = _record(plan, _master_section(plan, mc), _slave_section(plan, sc, rng))
+        sizing = size_build(load(rec), rules)
+        if _fits(plan, sizing):
+            return rec, sizing
+    return None
+
+
+def _schedule(rng: random.Random) -> list[tuple[str, dt.date, str, str, str]]:
+    """(id, date, status, family, trouble) for every build, in id order."""
+    slots = [(f.code, "") for f in FAMILIES for _ in range(f.builds)] + list(REJECTED)
+    rng.shuffle(slots)
+    start, end = dt.date(2023, 1, 9), dt.date(2025, 12, 19)
+    days = sorted(rng.sample(range((end - start).days), len(slots)))
+    rows = []
+    for (family, trouble), day in zip(slots, days):
+        date = start + dt.timedelta(days=day)
+        if trouble:
+            status = "rejected"
+        elif date < dt.date(2025, 7, 1) and rng.random() < 0.6:
+            status = "verified"
+        else:
+            status = "measured"
+        rows.append((date, status, family, trouble))
+    for n, (family, trouble) in enumerate(DRAFTS):
+        rows.append((dt.date(2026, 1, 12) + dt.timedelta(days=17 * n), "draft", family, trouble))
+    return [(f"HW-{101 + n:04d}", *row) for n, row in enumerate(rows)]
+
+
+def _measure(rec: Record, rules: m.ShopRules) -> dict:
+    """The measured section: the engine's ideal numbers spoiled by the family's true losses."""
+    rng = random.Random(f"{SEED}-{rec.id}")
+    build = load(rec)
+    ideal = size_build(build, rules, efficiency=1.0)
+    family = rec.family
+    eff, factor = FAMILY_EFFICIENCY[family], FAMILY_TRAVEL_FACTOR[family]
+    system, method = TECHNICIANS[rec.technician]
+    effort = ideal.effort_ideal / eff * (1.0 + rng.gauss(0.0, EFFORT_NOISE))
+    slave = ideal.slave_travel * factor * (1.0 + rng.gauss(0.0, TRAVEL_NOISE))
+    release_noise = 1.0 + rng.gauss(0.0, TRAVEL_NOISE)
+    gap = ideal.floor_gap * (1.0 + rng.gauss(0.0, GAP_NOISE)) if ideal.floor_gap else 0.0
+    measured = {"pedal_effort": force(effort, system),
+                "slave_travel": length(slave, system, 3, 1)}
+    if ideal.pad_travel_to_release is not None:
+        release = ideal.pad_travel_to_release / factor * release_noise
+        if release < build.pedal.pad_travel - ideal.floor_gap:
+            measured["pad_travel_to_release"] = length(release, system, 1, 0)
+    measured["floor_gap"] = length(gap, system, 2, 0)  # "0 in" / "0 mm" when none
+    measured["method"] = method
+    return measured
+
+
+def _notes(rec: Record, sizing: Sizing, trouble: str,
+           rng: random.Random) -> tuple[str | None, str]:
+    """(outcome, notes) in plain words, from what the record shows."""
+    measured = rec.measured or {}
+    effort = measured.get("pedal_effort")
+    if rec.status == "draft":
+        text = (f"Proposal for a {rec.vehicle}. Parts not ordered yet; check against past "
+                f"{rec.family} builds first.")
+        if trouble == "steep pushrod":
+            text += (" The master has to sit steeply on the bulkhead here, so the pushrod"
+                     " angle wants a look before anything is drilled.")
+        return None, text
+    if trouble == "travel":
+        return ("clutch dragged, would not select first at idle; build rejected",
+                f"Rejected. Travel short: the slave moved {measured['slave_travel'].text} and "
+                f"the clutch never fully released; the calculation left only "
+                f"{sizing.margin * 100:.0f} % margin and the real losses ate it. "
+                "Needs a larger master bore or a smaller slave for more travel.")
+    if trouble == "effort":
+        return ("pedal too heavy for the customer; build rejected",
+                f"Rejected. Effort too high: {effort.text} at the pad with the customer's "
+                "heavy clutch; could not be held in traffic. Pressure plate to be swapped "
+                "for a lighter one before trying again.")
+    if trouble == "bottoms":
+        return ("master bottomed early and the clutch dragged; build rejected",
+                f"Rejected. Master bottomed early: the master ran out of stroke "
+                f"{measured['floor_gap'].text} before the pedal stop and the clutch never "
+                "fully released. Needs a master that sweeps more fluid (longer stroke or "
+                "larger bore), with the pedal stop set where it bottoms.")
+    parts = [rng.choice((
+        "Bled from the slave end with a pressure bleeder.",
+        "Line clipped along the frame rail away from the exhaust.",
+        "Pushrod free play set at the pad before the final bleed.",
+        "Reservoir mounted above the master, hose run without dips.",
+    ))]
+    if sizing.floor_gap:
+        parts.append("Master bottoms before the pedal stop; stop bolt set to suit.")
+    if effort is not None and effort.si > 38 * POUND_FORCE:
+        parts.append("Pedal on the heavy side; customer chose it over a lighter plate.")
+    return rng.choice(GOOD_OUTCOMES), " ".join(parts)
+
+
+def invent(rng: random.Random, rules: m.ShopRules, ident: str, date: dt.date, status: str,
+           family: str, trouble: str, enrich=None) -> tuple[Record, Sizing]:
+    """One build that went as its record says: parts that fit, measured section, notes.
+
+    enrich(plan, rng), when given, may change each plan before its master and slave are chosen.
+    """
+    for _ in range(60):
+        plan = _plan(rng, ident, date, status, FAMILY[family], trouble)
+        if enrich is not None:
+            enrich(plan, rng)
+        chosen = _choose(plan, rng, rules)
+        if chosen:
+            break
+    else:
+        raise RuntimeError(f"{ident}: no catalogue pair fits a {family} '{trouble}' build")
+    rec, sizing = chosen
+    if status != "draft":
+        rec.measured = _measure(rec, rules)
+    rec.outcome, notes = _notes(rec, sizing, trouble, rng)
+    rec.notes = "\n".join(textwrap.wrap(notes, 88)) + "\n"  # as the block scalar reads
+    return rec, sizing
+
+
+def make_demo() -> tuple[list[Record], list[Sizing]]:
+    """Every demo record (id order) and its sizing at the shop's default efficiency."""
+    rules = demo_rules()
+    rng = random.Random(SEED)
+    made = [invent(rng, rules, *row) for row in _schedule(rng)]
+    return [rec for rec, _ in made], [sizing for _, sizing in made]
+
+
+# ----------------------------------------------------------------------------- writing
