@@ -18,8 +18,8 @@ import pytest
 from click.testing import CliRunner
 
 from builder.cli import main
+from browsing import search
 from builder.site.serve import StaticServer
-from test_browser_site import browser, page, search  # noqa: F401 (browser, page: fixtures)
 
 pytestmark = pytest.mark.browser
 

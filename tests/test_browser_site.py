@@ -3,30 +3,16 @@ script from record text. Uses Debian's chromium (never a browser download)."""
 from __future__ import annotations
 
 import os
-import shutil
 from pathlib import Path
-from urllib.parse import urlparse
 
 import pytest
 
 from builder.site import build_site
 from builder.site.serve import StaticServer
-from test_site_support import HOSTILE_ID, analysis
+from browsing import search
+from site_shops import HOSTILE_ID, analysis
 
 pytestmark = pytest.mark.browser
-
-CHROMIUM = "/usr/bin/chromium"
-ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
-        "--disable-component-update", "--no-first-run", "--disable-sync"]
-
-if not (os.path.exists(CHROMIUM) and shutil.which("chromium")):
-    if os.environ.get("CI") == "true":
-        pytest.fail(f"{CHROMIUM} is missing and CI=true: browser tests must run in CI",
-                    pytrace=False)
-    pytest.skip(f"{CHROMIUM} not installed (apt-get install chromium); browser tests skipped",
-                allow_module_level=True)
-
-sync_api = pytest.importorskip("playwright.sync_api")
 
 
 @pytest.fixture(scope="module")
@@ -36,62 +22,6 @@ def served(tmp_path_factory):
     build_site(analysis(6, hostile=True, root=str(root / "records")), out)
     with StaticServer(out) as server:
         yield server.url
-
-
-@pytest.fixture(scope="module")
-def browser():
-    with sync_api.sync_playwright() as playwright:
-        chromium = playwright.chromium.launch(executable_path=CHROMIUM, args=ARGS)
-        yield chromium
-        chromium.close()
-
-
-class Watch:
-    """Page errors, dialogs and every request that tried to leave 127.0.0.1."""
-
-    def __init__(self, page):
-        self.errors: list[str] = []
-        self.dialogs: list[str] = []
-        self.outside: list[str] = []
-        page.on("pageerror", lambda error: self.errors.append(str(error)))
-        page.on("dialog", self._dialog)
-        page.route("**/*", self._route)
-
-    def _dialog(self, dialog):
-        self.dialogs.append(dialog.message)
-        dialog.dismiss()
-
-    def _route(self, route):
-        if urlparse(route.request.url).hostname == "127.0.0.1":
-            route.continue_()
-        else:
-            self.outside.append(route.request.url)
-            route.abort()
-
-    def assert_clean(self):
-        assert self.errors == []
-        assert self.dialogs == []
-        assert self.outside == []
-
-
-@pytest.fixture
-def page(browser):
-    context = browser.new_context(viewport={"width": 1280, "height": 900})
-    page = context.new_page()
-    page.watch = Watch(page)
-    yield page
-    context.close()
-
-
-def search(page, words: str, expect_in_first: str | None = None):
-    """Type into the search box key by key; results refresh on each key-up."""
-    page.locator("label.md-search__icon, input.md-search__input").first.click()
-    page.locator("input.md-search__input").press_sequentially(words, delay=30)
-    results = page.locator("li.md-search-result__item")
-    results.first.wait_for(state="visible", timeout=10_000)
-    if expect_in_first:  # wait for the results of the whole query, not of a prefix
-        sync_api.expect(results.first).to_contain_text(expect_in_first, timeout=10_000)
-    return results
 
 
 def test_search_finds_a_build_and_opens_its_page(page, served):

@@ -10,7 +10,7 @@ from builder.engine.hydraulics import (
     hydraulic_ratio, line_compliance, line_pressure, line_volume, losses_volume, swept_volume,
 )
 from builder.model import circle_area
-from test_engine_factories import INCH, make_build, make_rules, si
+from factories import INCH, make_build, make_rules, si
 
 
 def test_piston_area_of_one_inch_bore():

@@ -9,7 +9,7 @@ import scipy.optimize
 from builder.engine import GeometryError, size_build
 from builder.engine.linkage import LeverPedal, SliderCrankPedal, arc_length, lever_ratio
 from builder.model import PedalLayout
-from test_engine_factories import INCH, make_build, make_rules, square_layout
+from factories import INCH, make_build, make_rules, square_layout
 
 
 def norton_slider(r: float, l: float, e: float, t: float) -> float:

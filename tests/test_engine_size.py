@@ -8,7 +8,7 @@ from hypothesis import given, settings, strategies as st
 
 from builder.engine import size_build
 from builder.engine.effort import load_at
-from test_engine_factories import (
+from factories import (
     INCH, POUND_FORCE, PSI, make_build, make_rules, square_layout,
 )
 

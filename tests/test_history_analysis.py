@@ -10,8 +10,8 @@ from builder.history import UnsizableBuilds, analyse, analyse_proposal, calibrat
 from builder.history.analysis import judged_on_history
 from builder.history.calibration import Prediction
 from builder.model import Pedal, PedalLayout, Shop
-from test_engine_factories import make_rules
-from test_history_factories import INCH, make_build, make_sizing
+from factories import make_rules
+from history_factories import INCH, make_build, make_sizing
 
 RULES = make_rules()
 

@@ -11,7 +11,7 @@ import scipy.stats
 
 from builder.history import Deltas, calibrate, deltas
 from builder.history.calibration import shrink_weight
-from test_history_factories import history, make_build, make_sizing
+from history_factories import history, make_build, make_sizing
 
 
 # ---- deltas -------------------------------------------------------------------------------

@@ -6,7 +6,7 @@ import pytest
 
 from builder.history import SimilarityIndex
 from builder.history.similar import CATEGORY_WEIGHTS, NUMERIC_SCALE, Difference, differences
-from test_history_factories import INCH, make_build, make_sizing
+from history_factories import INCH, make_build, make_sizing
 
 
 def pair(build_id, sizing_kwargs=None, **build_kwargs):

@@ -20,6 +20,7 @@ import sys
 from pathlib import Path
 
 import pytest
+from payloads import laughs
 from click.testing import CliRunner
 
 from builder.cli import main
@@ -71,15 +72,6 @@ def assert_problem(result, path: Path | str, field: str, text: str,
     if position is not None:
         assert found == position, output
     return found
-
-
-def laughs(levels: int = 9, width: int = 10) -> bytes:
-    """Nine levels of ten aliases each: 10**9 values once expanded (CWE-776)."""
-    text = "a: &a [" + ",".join(["lol"] * width) + "]\n"
-    for level in range(1, levels):
-        name, previous = chr(ord("a") + level), chr(ord("a") + level - 1)
-        text += f"{name}: &{name} [" + ",".join([f"*{previous}"] * width) + "]\n"
-    return text.encode()
 
 
 def python_tag(marker: Path) -> bytes:

@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from builder.records import validate_paths
-from test_hostile_cli import laughs  # the CWE-776 expansion, shared with the command-line tests
+from payloads import laughs  # the CWE-776 expansion, shared with the command-line tests
 
 
 def _problems(tmp_path: Path, content: bytes, name: str = "QA-0101.yaml"):

@@ -17,7 +17,7 @@ from builder.site.escape import md, md_paragraphs, plain
 from builder.site.pages import generated_pages, slug
 from builder.site.serve import StaticServer
 from builder.site.svg import nice_ticks
-from test_site_support import HOSTILE, HOSTILE_ID, analysis
+from site_shops import HOSTILE, HOSTILE_ID, analysis
 
 EXTENSIONS = ["tables", "admonition", "toc"]  # as in site_src/mkdocs.yml
 

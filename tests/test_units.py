@@ -8,7 +8,6 @@ Python's fractions module for exact mixed-fraction arithmetic.
 from __future__ import annotations
 
 import datetime as dt
-import math
 import subprocess
 import sys
 from fractions import Fraction

@@ -1,5 +1,5 @@
-"""Invented builds and shop rules for the engine tests (no tests here, only makers),
-and the one pint registry they share.
+"""Invented builds and shop rules for the engine and command tests (makers, no tests),
+and the one pint registry the tests share.
 
 All values are invented; SI units as builder.model requires.
 """

@@ -8,7 +8,7 @@ from builder.engine.result import Linkage, Sizing
 from builder.model import (
     Build, Clutch, Fork, Gearbox, Line, Master, Measured, Pedal, Slave,
 )
-from test_engine_factories import INCH
+from factories import INCH
 
 
 def make_build(build_id: str, family: str = "QX-5", status: str = "measured",

@@ -9,7 +9,7 @@ import math
 
 from builder.model import (Build, Clutch, Fork, Gearbox, Line, Master, Measured, Part, Pedal,
                            PedalLayout, Shop, Slave)
-from test_engine_factories import INCH as IN, POUND_FORCE as LBF, PSI, make_rules
+from factories import INCH as IN, POUND_FORCE as LBF, PSI, make_rules
 
 # Placed in every free-text field of the hostile build; none may become live markup.
 HOSTILE = [
