@@ -26,6 +26,9 @@ from builder.units import parse_quantity
 QUANTITY, TEXT, NAME, CHOICE, CURVE, LAYOUT, POINT, DATE, BUILD_ID, PART_ID, GROUP = (
     "quantity", "text", "name", "choice", "curve", "layout", "point", "date", "build_id", "part_id",
     "group")  # NAME: text that must not be empty
+QUANTITIES, POINTS = "quantities", "points"  # a short list of quantities, or of points
+MEASURED_KINDS = (QUANTITY, POINT, QUANTITIES, POINTS)  # kinds holding quantities of a dimension
+MAX_ALTERNATIVES = 8  # most items in a QUANTITIES or POINTS list (each is sized by `suggest`)
 
 PART_ID_PATTERN = "^[A-Z0-9]+(-[A-Z0-9]+)*$"
 _QUANTITY_PATTERN = r"^\s*[0-9.][0-9./ eE+-]*[^\s0-9./+-]"
@@ -110,6 +113,19 @@ def _text(key, label, description) -> Field:
 def _point(key, label, description) -> Field:
     return Field(key, POINT, label, description + " As [x, y], e.g. [-60 mm, -285 mm].",
                  "length", "-2 m", "2 m", required=True)
+
+
+CLEVIS_POSITIONS = Field(
+    "pedal.clevis_positions", QUANTITIES, "other clevis positions",
+    f"Optional: up to {MAX_ALTERNATIVES} other pivot-to-clevis holes the pedal has, e.g. "
+    "[1.9 in, 2.3 in]; `fitment suggest` tries each. With a layout, each is a hole on the line from the pivot through "
+    "the clevis, at that distance from the pivot.", "length", "5 mm", "300 mm")
+LAYOUT_CLEVIS_POSITIONS = Field(
+    "pedal.layout.clevis_positions", POINTS, "other clevis points",
+    f"Optional: up to {MAX_ALTERNATIVES} other clevis holes at rest, in the layout's frame, "
+    "e.g. [[-8 mm, -60 mm], "
+    "[-8 mm, -45 mm]]; `fitment suggest` tries each with the pushrod set to reach the same "
+    "seat.", "length", "-2 m", "2 m")
 
 
 TOP_FIELDS = (
@@ -202,7 +218,9 @@ SECTIONS = (
                   _q("pedal.layout.rotation_to_stop", "rotation to stop", "Pedal swing to the "
                      "floor stop, the way that pushes the master in.", "angle", "1 deg",
                      "90 deg", required=True),
+                  LAYOUT_CLEVIS_POSITIONS,
               )),
+        CLEVIS_POSITIONS,
     ), catalogue="pedals", either=(("layout",), ("pivot_to_pad", "pivot_to_clevis"))),
     Section("measured", "Measured on the car", "What the finished car showed; at least one "
             "value.", (
@@ -238,6 +256,8 @@ SHOP_FIELDS = (
               _q("shop.effort_band.high", "high", "Above this the pedal is too heavy.",
                  "force", "10 N", "1 kN", required=True),
           )),
+    _q("shop.target_effort", "target effort", "The pedal effort `fitment suggest` aims for; "
+       "inside the band. Left out: the middle of the band.", "force", "10 N", "1 kN"),
     _q("shop.min_travel_margin", "minimum travel margin", "Bearing travel over needed travel, "
        "e.g. 10 %.", "fraction", "0 %", "100 %", required=True),
     _q("shop.latest_release_point", "latest release point", "Release must happen within this "
@@ -304,8 +324,12 @@ def _quantity_ref(field: Field) -> dict:
     return {"$ref": f"#/$defs/{name}"}
 
 
+def _point_node(field: Field) -> dict:
+    return {"type": "array", "minItems": 2, "maxItems": 2, "items": _quantity_ref(field)}
+
+
 def _describe(field: Field) -> str:
-    if field.kind in (QUANTITY, POINT) and field.low is not None:
+    if field.kind in MEASURED_KINDS and field.low is not None:
         extra = f" Plausible: {field.low} to {field.high}."
         if field.default:
             extra += f" Default {field.default}."
@@ -331,7 +355,13 @@ def field_schema(field: Field) -> dict:
     elif kind == PART_ID:
         node = {"type": "string", "pattern": PART_ID_PATTERN, "minLength": 2, "maxLength": 24}
     elif kind == POINT:
-        node = {"type": "array", "minItems": 2, "maxItems": 2, "items": _quantity_ref(field)}
+        node = _point_node(field)
+    elif kind == QUANTITIES:
+        node = {"type": "array", "minItems": 1, "maxItems": MAX_ALTERNATIVES,
+                "items": _quantity_ref(field)}
+    elif kind == POINTS:
+        node = {"type": "array", "minItems": 1, "maxItems": MAX_ALTERNATIVES,
+                "items": _point_node(field)}
     elif kind == CURVE:
         first, second = field.children
         node = {"type": "array", "minItems": 2, "items": {

@@ -105,6 +105,8 @@ class PedalLayout:
     clevis: Point
     pushrod_seat: Point  # pushrod seat in the master piston, at rest
     rotation_to_stop: float  # rad, swing to the floor stop, the way that pushes the master in
+    # other clevis holes at rest (the pushrod is set to reach the same seat); `fitment suggest`
+    clevis_positions: tuple[Point, ...] | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -115,6 +117,8 @@ class Pedal:
     pushrod: str | None = None
     layout: PedalLayout | None = None  # wins over the two lengths when given
     part: str | None = None
+    # m, other pivot-to-clevis holes; with a layout, holes on the line from pivot to clevis
+    clevis_positions: tuple[float, ...] | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -169,6 +173,7 @@ class ShopRules:
     fluid_bulk_modulus: float  # Pa
     line_bore: float  # m, inner diameter of the line, for the fluid volume
     max_pushrod_angle: float  # rad, flag the pushrod past this angle to the bore axis
+    target_effort: float | None = None  # N; None: the middle of the effort band
 
 
 @dataclass(frozen=True, slots=True)

@@ -69,6 +69,9 @@ def _convert_rules(data: dict, report: f.ProblemCollector) -> model.ShopRules | 
     hoses = {hose: get("hose_expansion", hose) for hose in model.HOSE_KINDS}
     if None not in band and band[0] >= band[1]:
         report(("effort_band",), "low must be below high")
+    target = get("target_effort") if "target_effort" in data else None
+    if target is not None and None not in band and not band[0] <= target <= band[1]:
+        report(("target_effort",), "must lie inside the effort band (low to high)")
     values = dict(
         effort_band=band,
         min_travel_margin=get("min_travel_margin"),
@@ -81,7 +84,8 @@ def _convert_rules(data: dict, report: f.ProblemCollector) -> model.ShopRules | 
     )
     if report.problems or None in band or None in hoses.values() or None in values.values():
         return None
-    return model.ShopRules(site_title=str(data["site_title"]), display_units=data["display_units"], **values)
+    return model.ShopRules(site_title=str(data["site_title"]), display_units=data["display_units"],
+                           target_effort=target, **values)
 
 
 def parse_rules(text: str, shown: str = "shop.yaml") -> model.ShopRules:

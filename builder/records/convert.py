@@ -12,8 +12,8 @@ import math
 import re
 
 from builder import model
-from builder.fields import (CHOICE, CURVE, FIELDS, LAYOUT, PART_KINDS, POINT, QUANTITY, SECTION,
-                            SECTIONS, TEXT)
+from builder.fields import (CHOICE, CURVE, FIELDS, LAYOUT, MEASURED_KINDS, PART_KINDS, POINT,
+                            POINTS, QUANTITIES, QUANTITY, SECTION, SECTIONS, TEXT)
 from builder.presentation import accepted_range, quantity_message
 from builder.problems import Problem
 from builder.records._schema import dotted, quantity_patterns
@@ -23,7 +23,7 @@ from builder.units import QuantityError, check_range, parse_quantity
 # field key -> (dimension, lowest, highest) in SI, for every quantity the records hold
 PLAUSIBLE: dict[str, tuple[str, float, float]] = {
     key: (field.dimension, *field.bounds)
-    for key, field in FIELDS.items() if field.kind in (QUANTITY, POINT)
+    for key, field in FIELDS.items() if field.kind in MEASURED_KINDS
 }
 # PLAUSIBLE key -> search of the schema pattern a string for that field must match
 _FORMS = {
@@ -82,6 +82,7 @@ _REQUIRED = {section.name: section.required for section in SECTIONS}
 _ONE_OF = {key: tuple(k for k in s.one_of if k != key) for s in SECTIONS for key in s.one_of}
 _LAYOUT = FIELDS["pedal.layout"]
 _LAYOUT_POINTS = tuple(field.name for field in _LAYOUT.children if field.kind == POINT)
+_LAYOUT_POINT_LISTS = tuple(field.name for field in _LAYOUT.children if field.kind == POINTS)
 _DISTINCT_POINTS = (("pivot", "pad"), ("pivot", "clevis"), ("clevis", "pushrod_seat"))
 _LEAST_DISTANCE = 1e-3  # m
 
@@ -177,6 +178,8 @@ def convert_fields(section: str, raw: dict, report: ProblemCollector, where: tup
             fields[key] = value
         elif kind == CURVE:
             fields[key] = _load_curve(value, report, at)
+        elif kind == QUANTITIES:
+            fields[key] = _quantities(value, f"{section}.{key}", report, at)
         else:
             fields[key] = _layout(value, report, at)
     return fields
@@ -256,19 +259,41 @@ def _load_curve(raw: list, report: ProblemCollector, where: tuple) -> tuple | No
     return tuple(points)
 
 
+def _quantities(raw: list, key: str, report: ProblemCollector, where: tuple) -> tuple | None:
+    """A list of quantities of field `key`, or None when one of them is bad (each reported)."""
+    values = tuple(quantity(value, key, report, where + (i,)) for i, value in enumerate(raw))
+    return None if None in values else values
+
+
+def _point(raw: list, key: str, report: ProblemCollector, where: tuple) -> tuple:
+    x, y = raw
+    return quantity(x, key, report, where + (0,)), quantity(y, key, report, where + (1,))
+
+
 def _layout(raw: dict, report: ProblemCollector, where: tuple) -> model.PedalLayout | None:
     values = {}
     for name in _LAYOUT_POINTS:
-        x, y = raw[name]
-        at = where + (name,)
-        key = f"pedal.layout.{name}"
-        values[name] = (quantity(x, key, report, at + (0,)), quantity(y, key, report, at + (1,)))
+        values[name] = _point(raw[name], f"pedal.layout.{name}", report, where + (name,))
+    lists = {}
+    for name in _LAYOUT_POINT_LISTS:
+        if raw.get(name) is not None:
+            at = where + (name,)
+            lists[name] = tuple(_point(item, f"pedal.layout.{name}", report, at + (i,))
+                                for i, item in enumerate(raw[name]))
     rotation = quantity(raw["rotation_to_stop"], "pedal.layout.rotation_to_stop", report,
                         where + ("rotation_to_stop",))
-    if rotation is None or any(None in point for point in values.values()):
+    if rotation is None or any(None in point for point in values.values()) or any(
+            None in point for points in lists.values() for point in points):
         return None
     for one, other in _DISTINCT_POINTS:
         if math.dist(values[one], values[other]) < _LEAST_DISTANCE:
             report(where + (other,), f"{other} is within 1 mm of {one}; a lever needs distinct points")
             return None
-    return model.PedalLayout(rotation_to_stop=rotation, **values)
+    for name, points in lists.items():
+        for i, point in enumerate(points):
+            for other in ("pivot", "pushrod_seat"):
+                if math.dist(point, values[other]) < _LEAST_DISTANCE:
+                    report(where + (name, i), f"this clevis point is within 1 mm of {other}; a "
+                           "lever needs distinct points")
+                    return None
+    return model.PedalLayout(rotation_to_stop=rotation, **values, **lists)

@@ -136,6 +136,8 @@ def section_rows(section: object, show: Display, name: str) -> list[list[str]]:
         label = md(field.label)
         if field.kind == fields.QUANTITY:
             rows.append([label, show.q(value, field.dimension)])
+        elif field.kind == fields.QUANTITIES:
+            rows.append([label, ", ".join(show.q(v, field.dimension) for v in value)])
         elif field.kind == fields.CURVE:
             travel, load = field.children
             pairs = "; ".join(f"{show.q(t, travel.dimension)} at {show.q(f_, load.dimension)}"
@@ -147,7 +149,12 @@ def section_rows(section: object, show: Display, name: str) -> list[list[str]]:
     if layout is not None:
         for point in fields.FIELDS["pedal.layout"].children:
             value = getattr(layout, point.name)
-            if point.kind == fields.POINT:
+            if value is None:
+                continue
+            if point.kind == fields.POINTS:
+                rows.append([md(f"layout {point.label} (x, y)"), "; ".join(
+                    f"{show.q(x, point.dimension)}, {show.q(y, point.dimension)}" for x, y in value)])
+            elif point.kind == fields.POINT:
                 x, y = value
                 rows.append([md(f"layout {point.label} (x, y)"),
                              f"{show.q(x, point.dimension)}, {show.q(y, point.dimension)}"])
