@@ -69,25 +69,54 @@ def test_vectorised_distance_matches_a_plain_loop():
     expected = [plain(b, s) for b, s in pairs]
     np.testing.assert_allclose(index.distances(probe_build, probe_sizing), expected, atol=1e-9)
     found = index.query(probe_build, probe_sizing, k=8, exclude_id=probe_build.id)
-    ranked = sorted((d, b.id) for d, (b, _) in zip(expected, pairs) if b.id != probe_build.id)[:8]
-    assert [f.id for f in found] == [i for _, i in ranked]
+
+    def tier(b):  # family and fork direction first, then slave kind (the module's order)
+        family, fork, slave = (x != y for x, y in zip(kinds(b), kinds(probe_build)))
+        return (family + fork, slave)
+
+    ranked = sorted((tier(b), d, b.id) for d, (b, _) in zip(expected, pairs)
+                    if b.id != probe_build.id)[:8]
+    assert [f.id for f in found] == [i for _, _, i in ranked]
 
 
 def test_nearest_first_ties_by_id_and_exclusion():
     pairs = [
         pair("QX-004", slave_bore=0.75 * INCH),  # 15 % smaller slave bore
+        pair("QX-005", slave_bore=0.70 * INCH),  # 20 % smaller
         pair("QX-003"),  # identical
-        pair("QX-002", family="TR-4B"),  # 1.0 away
-        pair("QX-001", family="TR-4B"),  # 1.0 away, same as QX-002: id breaks the tie
+        pair("QX-002", master_bore=0.7 * INCH),  # 7 % smaller master bore
+        pair("QX-001", master_bore=0.7 * INCH),  # the same as QX-002: id breaks the tie
     ]
     index = SimilarityIndex(pairs)
     probe, sizing = pair("QX-900")
-    found = index.query(probe, sizing, k=3)
-    assert [f.id for f in found] == ["QX-003", "QX-001", "QX-002"]
+    found = index.query(probe, sizing, k=4)
+    assert [f.id for f in found] == ["QX-003", "QX-001", "QX-002", "QX-004"]
     assert [f.distance for f in found] == sorted(f.distance for f in found)
     assert [f.id for f in index.query(probe, sizing, k=3, exclude_id="QX-003")] == [
         "QX-001", "QX-002", "QX-004"]
-    assert len(index.query(probe, sizing, k=10, exclude_id="QX-003")) == 3
+    assert len(index.query(probe, sizing, k=10, exclude_id="QX-003")) == 4
+
+
+def test_family_and_fork_direction_dominate_then_slave_kind():
+    """A build of another family or fork direction never ranks above one of the same family
+    and direction, however near in numbers; slave kind likewise within them."""
+    pairs = [
+        pair("QX-001", family="TR-4B"),  # identical numbers, another family: distance 1.0
+        pair("QX-002", fork_tip="forward"),  # identical numbers, fork the other way: 1.0
+        pair("QX-003", family="TR-4B", fork_tip="forward"),  # both differ: 2.0
+        pair("QX-004", master_bore=0.5 * INCH, slave_bore=1.1 * INCH),  # far in numbers
+        pair("QX-005", slave_kind="concentric", slave_bore=None, piston_area=3.9e-4),
+        pair("QX-006", family="TR-4B", master_bore=0.5 * INCH),  # another family and far
+    ]
+    index = SimilarityIndex(pairs)
+    probe, sizing = pair("QX-900")
+    found = index.query(probe, sizing, k=6)
+    # QX-005 is an external-slave proposal's same family and fork, but a concentric slave
+    assert [f.id for f in found] == ["QX-004", "QX-005", "QX-001", "QX-002", "QX-006", "QX-003"]
+    near, far = found[0], found[2]
+    assert near.distance > far.distance  # the order is not by distance alone
+    # ids the same family and direction keep first place with any k
+    assert [f.id for f in index.query(probe, sizing, k=1)] == ["QX-004"]
 
 
 def test_candidates_have_a_measured_section_rejected_included():
@@ -144,3 +173,32 @@ def test_distance_is_documented_with_its_weights_and_scale():
     assert NUMERIC_SCALE == math.log(1.10)
     assert "ln(1.10)" in text and "1.0 when the gearbox family differs" in text
     assert "distance 0" in text
+
+
+def test_combinations_find_evidence_and_rejected_uses_by_numbers():
+    from dataclasses import replace
+
+    from builder.engine.result import Flag
+    from builder.history.similar import Combinations, RejectedUse
+
+    def used(build_id, status="verified", **kwargs):
+        return make_build(build_id, status=status, outcome=f"outcome of {build_id}", **kwargs)
+
+    rejected_sizing = replace(make_sizing("QX-004"), flags=(Flag("travel-short", "fail"),))
+    pairs = [
+        (used("QX-001"), make_sizing("QX-001")),
+        (used("QX-002", status="measured", master_bore=0.7501 * INCH), make_sizing("QX-002")),
+        (used("QX-003", master_bore=0.8125 * INCH), make_sizing("QX-003")),  # other master
+        (used("QX-004", status="rejected"), rejected_sizing),
+        (used("QX-005", fork_tip="forward"), make_sizing("QX-005")),  # other direction
+        (used("QX-006", status="draft", measured=False), make_sizing("QX-006")),
+    ]
+    combos = Combinations(pairs)
+    probe = make_build("QX-900", measured=False)
+    found = combos.use("QX-5", "rearward", probe.master, probe.slave)
+    assert found.evidence == ("QX-001", "QX-002")  # 0.0001 in apart is the same bore
+    assert found.rejected == (RejectedUse("QX-004", "outcome of QX-004", ("travel-short",)),)
+    assert combos.use("QX-5", "rearward", probe.master, probe.slave,
+                      exclude_id="QX-001").evidence == ("QX-002",)
+    assert combos.use("QX-5", "forward", probe.master, probe.slave).evidence == ("QX-005",)
+    assert combos.use("TR-4B", "rearward", probe.master, probe.slave).evidence == ()

@@ -12,10 +12,21 @@ The distance between two builds adds up:
   of the same area.
 
 An identical build is at distance 0. Candidates are the builds with a measured section
-(measured, verified and rejected: a rejected build close to a proposal is a warning). The
-nearest come first; equal distances are ordered by build id. "What differs" names each
-mismatch and each quantity that differs by 1 % or more, the similar build's value first,
-then the build asked about.
+(measured, verified and rejected: a rejected build close to a proposal is a warning).
+
+Order: gearbox family and fork direction come first, then slave kind, then distance. A build
+that matches the proposal's family and fork direction always ranks above one that does not
+(one that differs in one of the two above one that differs in both), and within those a build
+with the same slave kind above one with the other kind; the distance orders builds that
+agree on those, and equal distances are ordered by build id. A build of another family can
+be nearer in numbers, but what it teaches about this gearbox is less. "What differs" names
+each mismatch and each quantity that differs by 1 % or more, the similar build's value
+first, then the build asked about.
+
+Same combination (`Combinations`): finished builds of one gearbox family and fork direction
+that used the same master and slave, by numbers (bores within 0.002 in, piston areas within
+0.5 %, the fitment reference's tolerances): measured and verified ones are evidence for the
+combination, rejected ones a warning with their outcome and flags.
 """
 from __future__ import annotations
 
@@ -26,12 +37,15 @@ from dataclasses import dataclass
 import numpy as np
 
 from builder.engine.result import Sizing
-from builder.model import Build
+from builder.history.reference import AREA_TOLERANCE, BORE_TOLERANCE
+from builder.model import Build, Master, Slave
 
 CATEGORY_WEIGHTS = {"gearbox.family": 1.0, "gearbox.fork_tip_moves": 1.0, "slave.kind": 1.0}
 NUMERIC_SCALE = math.log(1.10)  # a 10 % difference adds 1.0
 NOTABLE_DIFFERENCE = 0.01  # quantities closer than 1 % are not listed as differing
 CANDIDATE_STATUSES = ("measured", "verified", "rejected")
+TIER_SPAN = 1.0e6  # more than any distance: ranks the category tiers ahead of the distance
+EVIDENCE_STATUSES = ("measured", "verified")
 
 
 @dataclass(frozen=True, slots=True)
@@ -92,28 +106,39 @@ class SimilarityIndex:
     def __len__(self) -> int:
         return len(self._pairs)
 
-    def distances(self, build: Build, sizing: Sizing) -> np.ndarray:
-        """Distance from the build to every candidate, in candidate order."""
+    def _mismatches(self, build: Build) -> np.ndarray:
+        """(3, candidates) booleans: family, fork direction and slave kind differ."""
         codes = np.array([codes.get(value, -1)
                           for codes, value in zip(self._codes, _categories(build))])
-        mismatch = self._categorical != codes[:, None]
+        return self._categorical != codes[:, None]
+
+    def distances(self, build: Build, sizing: Sizing) -> np.ndarray:
+        """Distance from the build to every candidate, in candidate order."""
+        return self._distances(self._mismatches(build), build, sizing)
+
+    def _distances(self, mismatch: np.ndarray, build: Build, sizing: Sizing) -> np.ndarray:
         apart = np.abs(self._numeric - _log_scaled(_numbers(build, sizing)))
         apart = np.where(np.isfinite(apart), apart, 1.0)  # a quantity not known counts 1.0
         return self._weights @ mismatch + apart.sum(axis=1)
 
     def query(self, build: Build, sizing: Sizing, k: int = 5,
               exclude_id: str | None = None) -> list[SimilarBuild]:
-        """The k nearest measured builds, nearest first, ties by id; `exclude_id` left out."""
-        distance = self.distances(build, sizing)
+        """The k most similar measured builds in the module's order (family and fork
+        direction, slave kind, distance, id); `exclude_id` left out."""
+        mismatch = self._mismatches(build)
+        distance = self._distances(mismatch, build, sizing)
+        # tier 0..5: family and fork mismatches (0, 1, 2) twice over, plus a slave kind mismatch
+        tier = 2 * (mismatch[0].astype(np.intp) + mismatch[1]) + mismatch[2]
+        key = tier * TIER_SPAN + distance
         excluded = self._index.get(exclude_id) if exclude_id is not None else None
         if excluded is not None:
-            distance[excluded] = np.inf
-        count = min(k, len(distance) - (excluded is not None))
+            key[excluded] = np.inf
+        count = min(k, len(key) - (excluded is not None))
         if count <= 0:
             return []
-        kth = np.partition(distance, count - 1)[count - 1]
-        near = np.flatnonzero(distance <= kth)
-        near = near[np.lexsort((self._id_rank[near], distance[near]))][:count]
+        kth = np.partition(key, count - 1)[count - 1]
+        near = np.flatnonzero(key <= kth)
+        near = near[np.lexsort((self._id_rank[near], distance[near], tier[near]))][:count]
         return [self._similar(build, sizing, int(i), float(distance[i])) for i in near]
 
     def _similar(self, build: Build, sizing: Sizing, i: int, distance: float) -> SimilarBuild:
@@ -151,3 +176,76 @@ def differences(other: Build, other_sizing: Sizing, build: Build, sizing: Sizing
               for name, theirs, ours, dimension in quantities
               if ours > 0 and abs(theirs / ours - 1.0) >= NOTABLE_DIFFERENCE]
     return tuple(found)
+
+
+# --- same master and slave on the same gearbox ----------------------------------------------
+
+@dataclass(frozen=True, slots=True)
+class RejectedUse:
+    """A rejected build that used a combination: its id, outcome and the flags it raised."""
+
+    id: str
+    outcome: str | None
+    flags: tuple[str, ...]  # codes of the flags its own sizing raised
+
+
+@dataclass(frozen=True, slots=True)
+class CombinationUse:
+    """Finished builds of one family and fork direction with one master and slave."""
+
+    evidence: tuple[str, ...]  # measured or verified build ids, by id
+    rejected: tuple[RejectedUse, ...]  # rejected builds, by id
+
+
+def _close(a: float | None, b: float | None, tolerance: float, relative: bool = False) -> bool:
+    if a is None or b is None:
+        return a is b
+    return abs(a - b) <= (tolerance * max(abs(a), abs(b)) if relative else tolerance)
+
+
+def same_cylinders(master: Master, slave: Slave, other_master: Master, other_slave: Slave) -> bool:
+    """Same master and slave by numbers: bores within BORE_TOLERANCE, slave kind equal and
+    piston areas within AREA_TOLERANCE (relative)."""
+    return (_close(master.bore, other_master.bore, BORE_TOLERANCE)
+            and slave.kind == other_slave.kind
+            and _close(slave.area, other_slave.area, AREA_TOLERANCE, relative=True))
+
+
+class Combinations:
+    """Finished builds grouped by (family, fork direction) and then by master and slave, so a
+    query compares against the few combinations of one gearbox, not every build."""
+
+    def __init__(self, pairs: Sequence[tuple[Build, Sizing]]):
+        self._groups: dict[tuple[str, str], list[tuple[Master, Slave, list[tuple[str, str, object]]]]] = {}
+        for build, sizing in sorted(pairs, key=lambda pair: pair[0].id):
+            if build.measured is None or build.status not in CANDIDATE_STATUSES:
+                continue
+            rows = self._groups.setdefault(
+                (build.gearbox.family, build.gearbox.fork_tip_moves), [])
+            entry = (build.id, build.status, RejectedUse(
+                build.id, build.outcome, tuple(flag.code for flag in sizing.flags)))
+            for master, slave, members in rows:
+                if same_cylinders(build.master, build.slave, master, slave):
+                    members.append(entry)
+                    break
+            else:
+                rows.append((build.master, build.slave, [entry]))
+
+    def use(self, family: str, fork_tip_moves: str, master: Master, slave: Slave,
+            exclude_id: str | None = None) -> CombinationUse:
+        """Which finished builds of this family and fork direction used this master and
+        slave; `exclude_id` (the build asked about, when it is a record) left out."""
+        evidence: list[str] = []
+        rejected: list[RejectedUse] = []
+        for other_master, other_slave, members in self._groups.get((family, fork_tip_moves), ()):
+            if not same_cylinders(master, slave, other_master, other_slave):
+                continue
+            for build_id, status, use in members:
+                if build_id == exclude_id:
+                    continue
+                if status in EVIDENCE_STATUSES:
+                    evidence.append(build_id)
+                else:
+                    rejected.append(use)
+        return CombinationUse(tuple(sorted(evidence)),
+                              tuple(sorted(rejected, key=lambda use: use.id)))
