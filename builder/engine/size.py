@@ -1,6 +1,8 @@
 """size_build: one build through the whole chain, pedal pad to release bearing."""
 from __future__ import annotations
 
+import functools
+
 from builder.engine import flags as checks
 from builder.engine.effort import effort_curve, ideal_effort, overall_ratio, predicted_effort
 from builder.engine.fork import fork_ratio
@@ -24,8 +26,12 @@ from builder.engine.travel import (
 from builder.model import Build, Pedal, ShopRules
 
 
+@functools.lru_cache(maxsize=256)
 def pedal_linkage(pedal: Pedal) -> LeverPedal | SliderCrankPedal:
-    """The layout when the record gives one, else the two lever lengths."""
+    """The layout when the record gives one, else the two lever lengths.
+
+    Made once per pedal (a frozen record; the linkage is not changed after it is made):
+    `fitment suggest` sizes hundreds of masters and slaves behind the same pedal."""
     if pedal.layout is not None:
         return SliderCrankPedal(pedal.layout)
     if pedal.pivot_to_pad is None or pedal.pivot_to_clevis is None:
