@@ -1,7 +1,8 @@
 """The `fitment` command line: one function per command, heavy imports deferred.
 
 Exit codes: 0 success, 1 invalid input (every problem printed as
-``path:line:col: field: message``), 2 usage error (click's own).
+``path:line:col: field: message``), 2 usage error (click's own), 3 when `check` finds a
+fail-severity flag (sized, not ready to order).
 """
 from __future__ import annotations
 
@@ -115,13 +116,21 @@ def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
 
 
 @main.command()
-@click.argument("file", type=click.Path(path_type=Path))
+@click.argument("file", metavar="FILE|ID", type=click.Path(path_type=Path))
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (stable keys).")
 @click.option("--similar", "k", type=click.IntRange(0, 50), default=5, show_default=True,
               help="How many similar past builds to list.")
 @click.pass_obj
 def check(ctx: Context, file: Path, as_json: bool, k: int) -> None:
-    """Size one build or proposal FILE and compare it with the shop's history."""
+    """Size one build or proposal FILE (or a recorded build by its ID) and compare it with
+    the shop's history.
+
+    The first line is the verdict: ready to order, ready with warnings, or not ready (with
+    the flag codes); when not ready, the best three suggestions follow.
+
+    Exit status: 0 ready (with or without warnings), 3 not ready (a fail-severity flag
+    fired), 1 invalid input, 2 usage error.
+    """
     from builder import check as checking
 
     analysis = _run(ctx.analysis)
@@ -133,9 +142,48 @@ def check(ctx: Context, file: Path, as_json: bool, k: int) -> None:
         click.echo(json.dumps(checking.contract(result, primary), indent=2, ensure_ascii=True))
     else:
         echo_safe(checking.describe(result, primary))
-        if any(flag.severity == "fail" for flag in result.sizing.flags):
+        if result.verdict == "not_ready":
             click.echo("")
             click.echo(CAUTION)
+    if result.verdict == "not_ready":
+        sys.exit(checking.EXIT_NOT_READY)
+
+
+@main.command()
+@click.argument("file", metavar="FILE|ID", type=click.Path(path_type=Path))
+@click.option("--top", type=click.IntRange(1, 100), default=5, show_default=True,
+              help="How many suggestions to list.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object (stable keys).")
+@click.option("--sizes", type=click.Choice(["catalogue", "standard"]), default="catalogue",
+              show_default=True, help="catalogue: the shop's parts only; standard: also the "
+              "common bores the catalogue lacks (1/16 in steps 5/8 to 1-1/8 in, whole mm 15 "
+              "to 28 mm), marked not in catalogue.")
+@click.pass_obj
+def suggest(ctx: Context, file: Path, top: int, as_json: bool, sizes: str) -> None:
+    """Which master, slave and clevis hole to order for FILE (or a recorded build's ID).
+
+    Keeps what the car fixes and tries every catalogue master and slave of the right kind
+    (and the pedal's other clevis holes), each sized by the engine and predicted with the
+    shop's calibration. Qualifying combinations come first, effort nearest the shop's target;
+    when none qualifies, the three nearest misses and the rule each misses.
+    """
+    from builder import check as checking
+    from builder import presentation as say
+    from builder.history.suggest import suggest as suggesting
+
+    analysis = _run(ctx.analysis)
+    build = _run(lambda: checking.resolve(analysis, file))
+    result = _run(lambda: _sized(lambda: suggesting(analysis, build, sizes)))
+    primary = analysis.shop.rules.display_units
+    if as_json:
+        import json
+
+        click.echo(json.dumps(checking.suggest_contract(result, build, top, primary), indent=2,
+                              ensure_ascii=True))
+    else:
+        echo_safe(say.suggestions_text(result, build, primary, top))
+        click.echo("")
+        click.echo(CAUTION)
 
 
 @main.command()

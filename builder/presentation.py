@@ -315,3 +315,223 @@ def difference_words(difference: Difference, primary: str = "imperial") -> str:
 def differences_text(differences: Iterable[Difference], primary: str = "imperial") -> str:
     words = [difference_words(d, primary) for d in differences]
     return "; ".join(words)
+
+
+# --- verdict --------------------------------------------------------------------------------
+
+VERDICT_WORDS = {"ready": "Ready to order", "warnings": "Ready to order, with warnings",
+                 "not_ready": "Not ready to order"}
+REJECTED_CODE = "rejected-combination"  # a rejected build used this master and slave
+
+
+def verdict_line(verdict: str, codes: Iterable[str]) -> str:
+    """The first line of `fitment check`: "Not ready to order: travel-short, release-late."
+
+    `codes`: the fail flags' codes when not ready, the warnings' when ready with warnings.
+    """
+    listed = ", ".join(dict.fromkeys(codes))
+    return f"{VERDICT_WORDS[verdict]}: {listed}." if listed else f"{VERDICT_WORDS[verdict]}."
+
+
+def rejected_line(use, primary: str = "imperial") -> str:
+    """"HW-0132 (rejected; its flags release-late, travel-short): slipped when hot"."""
+    flags = f"; its flags {', '.join(use.flags)}" if use.flags else ""
+    return f"{use.id} (rejected{flags}): {use.outcome or 'no outcome noted'}"
+
+
+# --- suggestions ----------------------------------------------------------------------------
+
+SIXTEENTH = 0.0254 / 16  # m
+SUGGEST_RULE_WORDS = {
+    "effort-high": "effort above the band", "effort-low": "effort below the band",
+    "travel-short": "margin under the minimum", "travel-over": "margin over the maximum",
+    "release-late": "release too late", "pressure-over-rating": "pressure over a rating",
+    "master-bottoms-early": "master bottoms before the stop",
+}
+
+
+def nominal_bore(value: float, primary: str = "imperial") -> str:
+    """A standard size by its name: "13/16 in (20.6 mm)" or "21 mm (0.827 in)".
+
+    >>> nominal_bore(0.0254 * 13 / 16), nominal_bore(0.021), nominal_bore(0.0254)
+    ('13/16 in (20.6 mm)', '21 mm (0.827 in)', '1 in (25.4 mm)')
+    """
+    sixteenths = round(value / SIXTEENTH)
+    if abs(value - sixteenths * SIXTEENTH) < 1e-7 and sixteenths > 0:
+        whole, part = divmod(sixteenths, 16)
+        if part:
+            common = math.gcd(part, 16)
+            numerator, denominator = part // common, 16 // common
+            name = f"{whole}-{numerator}/{denominator} in" if whole else f"{numerator}/{denominator} in"
+        else:
+            name = f"{whole} in"
+        return f"{name} ({quantity_in(value, 'length', 'metric')})"
+    millimetres = round(value * 1000)
+    if abs(value - millimetres / 1000) < 1e-7:
+        return f"{millimetres} mm ({quantity_in(value, 'length', 'imperial')})"
+    return quantity(value, "length", primary)
+
+
+def quantity_range(low: float, high: float, dimension: str, primary: str = "imperial") -> str:
+    """"27.3 to 28.6 lbf (121.4 to 127.3 N)"."""
+    def one(system: str) -> str:
+        first = quantity_in(low, dimension, system).split(" ", 1)[0]
+        return f"{first} to {quantity_in(high, dimension, system)}"
+    return f"{one(primary)} ({one(other_system(primary))})"
+
+
+def _point_words(point, primary: str) -> str:
+    def one(system: str) -> str:
+        x, y = (quantity_in(v, "length", system) for v in point)
+        return f"{x}, {y}"
+    return f"{one(primary)} ({one(other_system(primary))})"
+
+
+def _cylinder_value(value, dimension: str, catalogued: bool, primary: str) -> str:
+    if dimension == "area":
+        return f"{quantity(value, 'area', primary)} piston area"
+    return f"{quantity(value, 'length', primary) if catalogued else nominal_bore(value, primary)} bore"
+
+
+def change_words(change, primary: str = "imperial") -> str:
+    """What one change orders, and what it replaces.
+
+    "master MC-875: 0.875 in (22.2 mm) bore instead of 0.625 in (15.9 mm)";
+    "slave 13/16 in (20.6 mm) bore, not in catalogue, instead of SC-750";
+    "master MC-625: same 0.625 in (15.9 mm) bore, 1.4 in (35.6 mm) stroke instead of 1 in
+    (25.4 mm)"; "clevis hole 2.3 in (58.4 mm) from the pivot instead of 2 in (50.8 mm)".
+    """
+    if change.what == "clevis":
+        if change.dimension == "point":
+            return (f"clevis point {_point_words(change.value, primary)} instead of "
+                    f"{_point_words(change.was, primary)}")
+        return (f"clevis hole {quantity(change.value, 'length', primary)} from the pivot "
+                f"instead of {quantity(change.was, 'length', primary)}")
+    value = _cylinder_value(change.value, change.dimension, change.catalogued, primary)
+    if change.same_size:
+        detail = f"same {value}"
+        if change.stroke is not None and change.was_stroke is not None and not math.isclose(
+                change.stroke, change.was_stroke, rel_tol=1e-3):
+            detail += (f", {quantity(change.stroke, 'length', primary)} stroke instead of "
+                       f"{quantity(change.was_stroke, 'length', primary)}")
+        else:
+            detail += " and stroke"
+    else:
+        was = change.was_part or quantity(change.was, change.dimension, primary)
+        detail = f"{value}{'' if change.catalogued else ', not in catalogue,'} instead of {was}"
+    return f"{change.what} {change.part}: {detail}" if change.part else f"{change.what} {detail}"
+
+
+def changes_text(changes, primary: str = "imperial") -> str:
+    return "; ".join(change_words(c, primary) for c in changes) or "as proposed"
+
+
+def miss_words(miss, primary: str = "imperial") -> str:
+    """Which shop rule a candidate misses and by how much, in a phrase."""
+    rule = miss.rule
+    q = (lambda v: quantity(v, miss.dimension, primary)) if miss.dimension else str
+    if rule in ("effort-high", "effort-low"):
+        side = "above" if rule == "effort-high" else "below"
+        return f"{rule}: effort {q(miss.value)} is {side} {q(miss.limit)}"
+    if rule == "travel-short":
+        return (f"{rule}: margin {percent(miss.value, signed=True)} is under the shop's "
+                f"{percent(miss.limit)}")
+    if rule == "travel-over":
+        return (f"{rule}: margin {percent(miss.value, signed=True)} is over the shop's "
+                f"{percent(miss.limit)}")
+    if rule == "release-late":
+        if miss.value is None:
+            return f"{rule}: the clutch never fully releases"
+        return (f"{rule}: release at {percent(miss.value)} of pad travel, later than "
+                f"{percent(miss.limit)}")
+    if rule == "pressure-over-rating":
+        return (f"{rule}: worst-case pressure {q(miss.value)} is over the {miss.subject}'s "
+                f"{q(miss.limit)}")
+    if rule == "master-bottoms-early":
+        return f"{rule}: the master bottoms {q(miss.value)} before the pedal stop"
+    return f"{rule}: a fail-severity flag"
+
+
+def _evidence_text(ids) -> str:
+    return ", ".join(ids) if ids else "none yet"
+
+
+def suggestion_lines(row, rank: int | None, primary: str = "imperial",
+                     recommended: bool = False) -> list[str]:
+    """A candidate as a block of lines: what changes, then its figures, then evidence,
+    misses and rejected builds. `rank` None: the proposal as it stands."""
+    head = "As proposed" if rank is None else f"{rank:>2}. {changes_text(row.changes, primary)}"
+    if recommended:
+        head += "  <- recommended"
+    basis = row.prediction.basis
+    if row.prediction.effort is None:
+        interval = f" at the shop default efficiency ({prediction_note(row.prediction)})"
+    elif row.interval is None:
+        interval = " (no interval yet)"
+    else:
+        interval = (f", {basis.interval_percent} % interval "
+                    f"{quantity_range(*row.interval, 'force', primary)}")
+    release = ("never fully releases" if row.release_point is None
+               else f"release at {percent(row.release_point)} of pad travel")
+    headroom = ("no rating given" if row.headroom is None
+                else f"headroom {percent(row.headroom, signed=True)} to the lowest rating")
+    pad = "    "
+    lines = [head,
+             f"{pad}effort {quantity(row.effort, 'force', primary)}{interval}",
+             f"{pad}margin {percent(row.margin, signed=True)}; {release}",
+             f"{pad}worst-case pressure {quantity(row.pressure_worst, 'pressure', primary)}, "
+             f"{headroom}",
+             f"{pad}evidence: {_evidence_text(row.evidence)}"]
+    if row.misses:
+        lines.append(f"{pad}misses: " + "; ".join(miss_words(m, primary) for m in row.misses))
+    for use in row.rejected:
+        lines.append(f"{pad}warning, rejected before: {rejected_line(use, primary)}")
+    return lines
+
+
+def sensitivity_line(sensitivities, primary: str = "imperial") -> str:
+    """"One 1/16 in (1.6 mm) step up in bore: master effort +3 lbf (+13.4 N), margin +11.2
+    points; slave effort ..."."""
+    if not sensitivities:
+        return ""
+    step = sensitivities[0].step
+    parts = [f"{s.what} effort {_signed_quantity(s.effort_change, 'force', primary)}, margin "
+             f"{s.margin_change * 100:+.1f} points" for s in sensitivities]
+    return f"One {nominal_bore(step, primary)} step up in bore, as proposed: {'; '.join(parts)}."
+
+
+def _signed_quantity(value: float, dimension: str, primary: str) -> str:
+    text = quantity(abs(value), dimension, primary)
+    sign = "-" if value < 0 else "+"
+    return sign + text.replace(" (", f" ({sign}")
+
+
+def suggestions_text(result, build, primary: str = "imperial", top: int = 5) -> str:
+    """The whole `fitment suggest` view: the proposal, what was tried, the ranked rows, the
+    sensitivities of the proposal."""
+    tried = result.tried
+    lines = [f"Suggestions for {build.id}: gearbox {build.gearbox.family}, fork tip "
+             f"{build.gearbox.fork_tip_moves}, {build.slave.kind} slave; "
+             f"{'catalogue parts' if result.sizes == 'catalogue' else 'catalogue parts and standard sizes'}",
+             ""]
+    lines += suggestion_lines(result.proposal, None, primary)
+    holes = tried["clevis"]
+    count = result.combinations
+    lines += ["",
+              f"Tried {tried['masters']} masters x {tried['slaves']} slaves x {holes} clevis "
+              f"{'hole' if holes == 1 else 'holes'}: {count} combinations"
+              + (f" ({result.unsizable} could not be sized)" if result.unsizable else "")
+              + f", {result.qualifying} meet the shop's rules; target effort "
+              f"{quantity(result.target, 'force', primary)}.", ""]
+    shown = result.shown(top)
+    if result.recommendation is None:
+        lines.append(f"Nothing tried meets the shop's rules; the {len(shown)} nearest "
+                     f"{'miss' if len(shown) == 1 else 'misses'}:")
+        lines.append("")
+    for rank, row in enumerate(shown, start=1):
+        lines += suggestion_lines(row, rank, primary, recommended=rank == 1
+                                  and result.recommendation is not None)
+    sensitivity = sensitivity_line(result.sensitivities, primary)
+    if sensitivity:
+        lines += ["", sensitivity]
+    return "\n".join(lines)

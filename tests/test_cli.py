@@ -27,8 +27,8 @@ CONTRACT = {
     "volume": {"master_swept_ml", "needed_ml", "losses_ml"},
     "pedal": {"floor_gap_mm"},
 }
-TOP_KEYS = {"id", "status", "ratios", "effort", "travel", "pressure_kPa", "volume", "pedal",
-            "flags", "similar"}
+TOP_KEYS = {"id", "status", "verdict", "ratios", "effort", "travel", "pressure_kPa", "volume",
+            "pedal", "flags", "similar", "suggestions"}
 
 
 def run(*args: str, records: Path = RECORDS):
@@ -61,8 +61,13 @@ def test_validate_demo_is_clean():
 @pytest.mark.parametrize("path", ALL_BUILDS, ids=lambda p: p.stem)
 def test_check_json_has_every_contract_key(path: Path):
     result = run("check", str(path), "--json")
-    assert result.exit_code == 0, result.output
     data = json.loads(result.output)
+    fails = [flag for flag in data["flags"] if flag["severity"] == "fail"]
+    # exit 3 exactly when a fail-severity flag fires (sized, not ready to order)
+    assert result.exit_code == (3 if fails else 0), result.output
+    assert data["verdict"] == ("not_ready" if fails else "warnings" if data["flags"]
+                               or data["rejected_before"] else "ready")
+    assert (data["suggestions"] != []) == bool(fails)  # suggestions only when not ready
     assert set(data) >= TOP_KEYS
     for section, keys in CONTRACT.items():
         assert set(data[section]) >= keys, section
@@ -118,7 +123,8 @@ def test_failing_check_prints_the_caution(tmp_path: Path):
         lines.append(line)
     proposal.write_text("\n".join(lines).replace(f"id: {path.stem}", "id: PR-0002") + "\n")
     result = run("check", str(proposal))
-    assert result.exit_code == 0, result.output
+    assert result.exit_code == 3, result.output
+    assert result.output.startswith("Not ready to order: ")
     assert "FAIL" in result.output
     assert "makers' specifications" in result.output
 
