@@ -371,8 +371,8 @@ def describe(result: CheckResult, primary: str) -> str:
         lines.append("")
         shown = found.shown(CHECK_SUGGESTIONS)
         if found.recommendation is None:
-            lines.append(f"Nothing in the catalogue meets the shop's rules; the {len(shown)} "
-                         "nearest misses (`fitment suggest --sizes standard` tries more sizes):")
+            lines.append(say.no_recommendation_line(found, len(shown), "in the catalogue")
+                         + " (`fitment suggest --sizes standard` tries more sizes)")
         else:
             lines.append(f"Best {len(shown)} of {found.combinations} catalogue combinations "
                          f"({found.qualifying} meet the shop's rules; `fitment suggest` lists more):")

@@ -465,7 +465,7 @@ def suggestion_lines(row, rank: int | None, primary: str = "imperial",
         head += "  <- recommended"
     basis = row.prediction.basis
     if row.prediction.effort is None:
-        interval = f" at the shop default efficiency ({prediction_note(row.prediction)})"
+        interval = f" at the shop default efficiency: {prediction_note(row.prediction)}"
     elif row.interval is None:
         interval = " (no interval yet)"
     else:
@@ -506,6 +506,15 @@ def _signed_quantity(value: float, dimension: str, primary: str) -> str:
     return sign + text.replace(" (", f" ({sign}")
 
 
+def no_recommendation_line(result, shown: int, what: str = "tried") -> str:
+    """Why no row is recommended: nothing qualifies, or only what a rejected build used."""
+    if result.qualifying:
+        return (f"Only combinations that a rejected build used meet the shop's rules; the "
+                f"first {shown}:")
+    return (f"Nothing {what} meets the shop's rules; the {shown} nearest "
+            f"{'miss' if shown == 1 else 'misses'}:")
+
+
 def suggestions_text(result, build, primary: str = "imperial", top: int = 5) -> str:
     """The whole `fitment suggest` view: the proposal, what was tried, the ranked rows, the
     sensitivities of the proposal."""
@@ -525,8 +534,7 @@ def suggestions_text(result, build, primary: str = "imperial", top: int = 5) -> 
               f"{quantity(result.target, 'force', primary)}.", ""]
     shown = result.shown(top)
     if result.recommendation is None:
-        lines.append(f"Nothing tried meets the shop's rules; the {len(shown)} nearest "
-                     f"{'miss' if len(shown) == 1 else 'misses'}:")
+        lines.append(no_recommendation_line(result, len(shown)))
         lines.append("")
     for rank, row in enumerate(shown, start=1):
         lines += suggestion_lines(row, rank, primary, recommended=rank == 1

@@ -50,10 +50,12 @@ Order. Qualifying candidates first; among them, predicted effort nearest the sho
 (`target_effort`, default the middle of the band), in steps of 5 % of the target (common
 practice, no source: a driver does not feel less), and within one step, more evidence first
 (measured or verified builds of the same family and fork direction that used the same master
-and slave, `builder.history.similar.Combinations`), then the nearer effort. Candidates that
-miss follow, nearest miss first. A candidate whose master and slave a rejected build of the
-same family and fork direction used goes last, with that build's outcome and flags. Ties:
-fewer changes, catalogue parts before standard sizes, then the parts' ids and sizes.
+and slave, `builder.history.similar.Combinations`), then the nearer effort. A qualifying
+candidate whose master and slave a rejected build of the same family and fork direction used
+comes last among the qualifying ones, shown with that build's outcome and flags, and is never
+the recommendation. Candidates that miss follow, nearest miss first (those a rejected build
+used after the others). Ties: fewer changes, catalogue parts before standard sizes, then the
+parts' ids and sizes.
 
 Sensitivities of the proposal: the change in effort and margin from one 1/16 in step up of
 the master bore, and of the slave bore (not for a slave given by piston area).
@@ -204,8 +206,8 @@ class Suggestions:
         return sum(row.qualifies for row in self.ranked)
 
     def shown(self, top: int) -> tuple[Suggestion, ...]:
-        """The rows to show: the first `top`, or when nothing is recommended the nearest
-        misses (at most three)."""
+        """The rows to show: the first `top`, or when nothing is recommended (nothing
+        qualifies, or only what a rejected build used) the first three at most."""
         count = top if self.recommendation is not None else min(top, NEAREST_MISSES)
         return self.ranked[:count]
 
@@ -455,5 +457,5 @@ def _rank(row: Suggestion, target: float) -> tuple:
         (c.what, c.part or "", str(c.value)) for c in row.changes))
     if row.qualifies:
         near = abs(row.effort / target - 1.0)
-        return (bool(row.rejected), 0, int(near / EFFORT_STEP), -len(row.evidence), near, ties)
-    return (bool(row.rejected), 1, 0, 0, row.miss_total, ties)
+        return (0, bool(row.rejected), int(near / EFFORT_STEP), -len(row.evidence), near, ties)
+    return (1, bool(row.rejected), 0, 0, row.miss_total, ties)
