@@ -75,7 +75,9 @@ def progress_reporter(label: str):
     return report
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.group(context_settings={"help_option_names": ["-h", "--help"]},
+             epilog="Exit status: 0 success, 1 invalid input, 2 usage error, 3 when `check` "
+                    "finds a fail-severity flag (sized, not ready to order).")
 @click.option(
     "--records",
     type=click.Path(file_okay=False, path_type=Path),
@@ -115,7 +117,7 @@ def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
     click.echo(f"All records valid ({len(builds)} builds).")
 
 
-@main.command()
+@main.command(short_help="Size one build or proposal: verdict, similar builds, suggestions.")
 @click.argument("file", metavar="FILE|ID", type=click.Path(path_type=Path))
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object (stable keys).")
 @click.option("--similar", "k", type=click.IntRange(0, 50), default=5, show_default=True,
@@ -149,7 +151,7 @@ def check(ctx: Context, file: Path, as_json: bool, k: int) -> None:
         sys.exit(checking.EXIT_NOT_READY)
 
 
-@main.command()
+@main.command(short_help="Which master, slave and clevis hole to order for a proposal.")
 @click.argument("file", metavar="FILE|ID", type=click.Path(path_type=Path))
 @click.option("--top", type=click.IntRange(1, 100), default=5, show_default=True,
               help="How many suggestions to list.")

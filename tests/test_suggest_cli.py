@@ -393,3 +393,23 @@ def test_a_failing_demo_proposal_gets_an_order_ready_alternative(tmp_path):
     again = run(DEMO, "check", str(proposal), "--json")
     assert again.exit_code == 0, again.output
     assert json.loads(again.output)["verdict"] in ("ready", "warnings")
+
+
+def test_record_text_in_suggest_output_is_terminal_safe(small):
+    records, proposal = small
+    rejected = records / "builds" / "ZZ-0102.yaml"
+    rejected.write_text(rejected.read_text().replace(
+        "outcome: dragged when hot", 'outcome: "dragged \\e[31mRED\\a"'), encoding="utf-8")
+    result = run(records, "suggest", str(proposal))
+    assert result.exit_code == 0, result.output
+    assert "\x1b" not in result.output and "\x07" not in result.output
+    assert "dragged \\x1b[31mRED\\x07" in result.output
+    as_json = run(records, "suggest", str(proposal), "--json").output
+    assert all(ch == "\n" or " " <= ch < "\x7f" for ch in as_json)  # ASCII with escapes
+    assert json.loads(as_json)["suggestions"][1]["rejected_before"][0]["outcome"] == (
+        "dragged \x1b[31mRED\x07")
+
+
+def test_main_help_gives_the_exit_status():
+    text = run(DEMO, "--help").output
+    assert "3 when `check` finds" in text and "suggest" in text

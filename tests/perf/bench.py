@@ -256,7 +256,7 @@ def bench_check(records: Path, label: str, proposal: Path) -> None:
         after = os.times()
         cpus.append(after.children_user - before.children_user
                     + after.children_system - before.children_system)
-        if done.returncode != 0:
+        if done.returncode not in (0, 3):  # 3: sized, not ready to order
             raise SystemExit(f"fitment check failed on {label}:\n{done.stderr}")
     wall = statistics.median(walls)
     line(f"fitment check, {label} (median)", f"{wall:.2f} s", f"<= {TARGET_CHECK_S:g} s",

@@ -1,0 +1,164 @@
+"""Speed of `fitment suggest`: ``.venv/bin/python tests/perf/bench_suggest.py [--keep DIR]``.
+
+Runs `fitment suggest PROPOSAL` end to end as a subprocess (process start, loading and
+analysing the shop included), median of RUNS, on the demo shop in records/ and on a
+synthetic 1,000-build shop (tests/perf/synthetic_shop.py), for two invented proposals:
+
+- lever: a two-lengths pedal with two other clevis holes (3 pedal positions);
+- layout: a side-view pedal with two other clevis points and two other holes on the arm
+  (5 pedal positions), the heaviest to size;
+
+each with `--sizes catalogue` (the default) and `--sizes standard`. Beside each figure, in
+the same run, `fitment check` of the same proposal: the ratio says what suggesting adds to
+what a check already costs. Targets: under 1 s on the demo shop, under 2 s on the
+1,000-build shop. Wall-clock figures on a shared machine vary; CPU seconds are printed too.
+Not a test: pytest does not collect it.
+"""
+from __future__ import annotations
+
+import argparse
+import os
+import shutil
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+HERE = Path(__file__).resolve().parent
+REPO = HERE.parents[1]
+sys.path.insert(0, str(HERE))
+
+import synthetic_shop  # noqa: E402  (beside this file)
+
+PYTHON = sys.executable
+FITMENT = str(Path(PYTHON).with_name("fitment"))
+DEMO_RECORDS = REPO / "records"
+RUNS = 5
+SHOP_SIZE = 1_000
+TARGETS = {"demo": 1.0, "synthetic": 2.0}
+
+COMMON = """\
+status: draft
+vehicle: estate car, inline six (invented)
+gearbox:
+  family: JH-5R
+  fork_tip_moves: rearward
+clutch:
+  release_load: 1.5 kN
+  release_travel: 8 mm
+  clearance: 1.5 mm
+fork:
+  pivot_to_slave: 150 mm
+  pivot_to_bearing: 80 mm
+master:
+  bore: 5/8 in
+  stroke: 1.0 in
+  rated_pressure: 1200 psi
+slave:
+  kind: external
+  bore: 1 in
+  stroke: 1.0 in
+  rated_pressure: 1000 psi
+line:
+  length: 30 in
+  hose: braided_ptfe
+  fluid: DOT 4
+"""
+PROPOSALS = {
+    "lever": "id: PR-0301\n" + COMMON + """\
+pedal:
+  pivot_to_pad: 11 in
+  pivot_to_clevis: 2.0 in
+  pad_travel: 6 in
+  clevis_positions: [1.75 in, 2.3 in]
+""",
+    "layout": "id: PR-0302\n" + COMMON + """\
+pedal:
+  pad_travel: 152 mm
+  clevis_positions: [48 mm, 58 mm]
+  layout:
+    pivot: [0 mm, 0 mm]
+    pad: [-63.5 mm, -276.8 mm]
+    clevis: [-12.1 mm, -50.5 mm]
+    pushrod_seat: [122.2 mm, -51.0 mm]
+    rotation_to_stop: 30.5 deg
+    clevis_positions: [[-12 mm, -45 mm], [-13 mm, -60 mm]]
+""",
+}
+
+
+def timed(args: list[str]) -> tuple[float, float, int]:
+    """(median wall s, median cpu s, exit status) of RUNS runs of `fitment ARGS`."""
+    walls, cpus, status = [], [], 0
+    for _ in range(RUNS):
+        before = os.times()
+        t0 = time.perf_counter()
+        done = subprocess.run([FITMENT, *args], capture_output=True, text=True)
+        walls.append(time.perf_counter() - t0)
+        after = os.times()
+        cpus.append(after.children_user - before.children_user
+                    + after.children_system - before.children_system)
+        status = done.returncode
+        if done.returncode not in (0, 3):
+            raise SystemExit(f"fitment {' '.join(args)} failed:\n{done.stderr}")
+    return statistics.median(walls), statistics.median(cpus), status
+
+
+def candidates(records: Path, proposal: Path, sizes: str) -> int:
+    import json
+
+    done = subprocess.run([FITMENT, "--records", str(records), "suggest", str(proposal),
+                           "--json", "--sizes", sizes], capture_output=True, text=True)
+    return json.loads(done.stdout)["combinations"]
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--keep", type=Path, help="scratch folder kept (and reused) between runs")
+    parser.add_argument("--seed", type=int, default=synthetic_shop.DEFAULT_SEED)
+    args = parser.parse_args(argv)
+    work = args.keep or Path(tempfile.mkdtemp(prefix="fitment-bench-suggest-"))
+    work.mkdir(parents=True, exist_ok=True)
+    started = time.perf_counter()
+    try:
+        synthetic = work / f"shop-{SHOP_SIZE}" / "records"
+        if not (synthetic / ".complete").exists():
+            shutil.rmtree(synthetic, ignore_errors=True)
+            t0 = time.perf_counter()
+            synthetic_shop.write_shop(synthetic, SHOP_SIZE, args.seed)
+            (synthetic / ".complete").write_text(f"seed {args.seed}\n")
+            print(f"generated a {SHOP_SIZE}-build shop in {time.perf_counter() - t0:.0f} s")
+        shops = {"demo": DEMO_RECORDS, "synthetic": synthetic}
+        paths = {}
+        for name, text in PROPOSALS.items():
+            paths[name] = work / f"{name}.yaml"
+            paths[name].write_text(text, encoding="utf-8")
+        print(f"python {sys.version.split()[0]}, {os.cpu_count()} cpus, load average "
+              f"{os.getloadavg()[0]:.1f}; median of {RUNS} runs each, process start included")
+        print(f"{'shop':<24} {'proposal':<8} {'sizes':<10} {'tried':>5}  {'suggest wall (cpu)':<18} "
+              f"{'check wall (cpu)':<17} {'ratio':>5}  target  verdict")
+        for shop, records in shops.items():
+            label = "demo (58 builds)" if shop == "demo" else f"synthetic ({SHOP_SIZE} builds)"
+            for name, proposal in paths.items():
+                check_wall, check_cpu, status = timed(["--records", str(records), "check",
+                                                       str(proposal)])
+                for sizes in ("catalogue", "standard"):
+                    wall, cpu, _ = timed(["--records", str(records), "suggest", str(proposal),
+                                          "--sizes", sizes])
+                    target = TARGETS[shop]
+                    print(f"{label:<24} {name:<8} {sizes:<10} "
+                          f"{candidates(records, proposal, sizes):>5}  {wall:>5.2f} s ({cpu:.2f} s)"
+                          f"{'':<4} {check_wall:>5.2f} s ({check_cpu:.2f} s) {wall / check_wall:>5.2f}x"
+                          f"  < {target:g} s   {'MET' if wall < target else 'NOT MET'}"
+                          f"  (check exit {status})", flush=True)
+    finally:
+        if args.keep is None:
+            shutil.rmtree(work, ignore_errors=True)
+    print(f"benchmark took {time.perf_counter() - started:.0f} s")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
