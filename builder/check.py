@@ -175,6 +175,7 @@ def contract(result: CheckResult, primary: str = "imperial") -> dict:
                 "differs": [say.difference_words(x, primary) for x in item.differs],
                 "measured_effort_N": say.in_unit(item.measured_effort, "N", 2),
                 "outcome": item.outcome,
+                "status": item.status,
             }
             for item in result.similar
         ],
@@ -371,8 +372,9 @@ def describe(result: CheckResult, primary: str) -> str:
         lines.append("")
         shown = found.shown(CHECK_SUGGESTIONS)
         if found.recommendation is None:
-            lines.append(say.no_recommendation_line(found, len(shown), "in the catalogue")
-                         + " (`fitment suggest --sizes standard` tries more sizes)")
+            lines.append(say.no_recommendation_line(
+                found, len(shown), "in the catalogue",
+                "`fitment suggest --sizes standard` also tries sizes not in the catalogue"))
         else:
             lines.append(f"Best {len(shown)} of {found.combinations} catalogue combinations "
                          f"({found.qualifying} meet the shop's rules; `fitment suggest` lists more):")

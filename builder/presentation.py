@@ -506,12 +506,14 @@ def _signed_quantity(value: float, dimension: str, primary: str) -> str:
     return sign + text.replace(" (", f" ({sign}")
 
 
-def no_recommendation_line(result, shown: int, what: str = "tried") -> str:
-    """Why no row is recommended: nothing qualifies, or only what a rejected build used."""
+def no_recommendation_line(result, shown: int, what: str = "tried", hint: str = "") -> str:
+    """Why no row is recommended: nothing qualifies, or only what a rejected build used.
+    `hint`, when given, follows in brackets."""
+    hint = f" ({hint})" if hint else ""
     if result.qualifying:
-        return (f"Only combinations that a rejected build used meet the shop's rules; the "
-                f"first {shown}:")
-    return (f"Nothing {what} meets the shop's rules; the {shown} nearest "
+        return (f"Only combinations that a rejected build used meet the shop's rules{hint}; "
+                f"the first {shown}:")
+    return (f"Nothing {what} meets the shop's rules{hint}; the {shown} nearest "
             f"{'miss' if shown == 1 else 'misses'}:")
 
 

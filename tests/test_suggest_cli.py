@@ -413,3 +413,17 @@ def test_record_text_in_suggest_output_is_terminal_safe(small):
 def test_main_help_gives_the_exit_status():
     text = run(DEMO, "--help").output
     assert "3 when `check` finds" in text and "suggest" in text
+
+
+def test_check_when_nothing_in_the_catalogue_qualifies(small):
+    records, proposal = small
+    proposal.write_text(PROPOSAL.replace("release_load: 400 lbf", "release_load: 1500 lbf"),
+                        encoding="utf-8")
+    result = run(records, "check", str(proposal))
+    assert result.exit_code == 3, result.output
+    assert "Nothing in the catalogue meets the shop's rules (`fitment suggest --sizes " \
+           "standard` also tries sizes not in the catalogue); the 3 nearest misses:" in result.output
+    data = json.loads(run(records, "check", str(proposal), "--json").output)
+    assert len(data["suggestions"]) == 3
+    assert all(not row["qualifies"] and row["misses"] and not row["recommended"]
+               for row in data["suggestions"])
