@@ -13,7 +13,9 @@ tried again. A slave given by piston area (an annular concentric slave) varies o
 catalogue only. Where the pedal lists other clevis holes (`pedal.clevis_positions`, lengths
 from the pivot; on a layout pedal, holes on the line from the pivot through the clevis; or
 `pedal.layout.clevis_positions`, points in the layout frame with the pushrod set to reach the
-same seat), each hole is tried with each pair. The proposal as it stands is a candidate too when it qualifies (it is
+same seat), each hole is tried with each pair. (A layout's bore axis runs from the clevis at
+rest through the seat, so for another hole it is the line from that hole through the same
+seat: a hole a few millimetres away turns it by a degree or two.) The proposal as it stands is a candidate too when it qualifies (it is
 always judged and shown apart).
 
 How each is judged. Every candidate is sized by the engine (`builder.engine.size_build`),
