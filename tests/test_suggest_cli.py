@@ -427,3 +427,17 @@ def test_check_when_nothing_in_the_catalogue_qualifies(small):
     assert len(data["suggestions"]) == 3
     assert all(not row["qualifies"] and row["misses"] and not row["recommended"]
                for row in data["suggestions"])
+
+
+def test_similar_builds_of_the_demo_put_the_same_gearbox_and_direction_first(tmp_path):
+    from builder.records import load_shop
+
+    proposal = tmp_path / "proposal.yaml"
+    proposal.write_text(DEMO_PROPOSAL.replace("  kind: external\n  bore: 1 in",
+                                              "  kind: external\n  bore: 1.1 in"), encoding="utf-8")
+    data = json.loads(run(DEMO, "check", str(proposal), "--json", "--similar", "20").output)
+    builds = {b.id: b for b in load_shop(DEMO).builds}
+    same = [(builds[item["id"]].gearbox.family, builds[item["id"]].gearbox.fork_tip_moves)
+            == ("JH-5R", "rearward") for item in data["similar"]]
+    assert same[0] and True in same and False in same
+    assert same == sorted(same, reverse=True)  # no other family or direction above a JH-5R one
