@@ -101,8 +101,7 @@ def _run(action):
 @click.pass_obj
 def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
     """Check the shop rules, parts catalogue and build records (or only PATHS)."""
-    from builder.history import unsizable
-    from builder.located import unsizable_problems
+    from builder.located import unsizable, unsizable_problems
     from builder.records import validate_and_load
 
     rules, builds, problems = validate_and_load(ctx.records, list(paths),
