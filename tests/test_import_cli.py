@@ -319,3 +319,27 @@ def test_a_file_planted_at_the_target_is_never_replaced(shop, monkeypatch):
     assert "appeared while importing; nothing written" in result.stderr
     assert target.read_text() == "planted\n"
     assert not [p for p in target.parent.iterdir() if p.name.startswith(".")]  # no temporary left
+
+
+def test_a_link_planted_at_the_target_is_left_alone(shop, tmp_path):
+    outside = tmp_path / "outside.yaml"
+    outside.write_text("not a record\n")
+    target = shop / "builds" / "2021" / "OLD-0017.yaml"
+    target.parent.mkdir(parents=True, exist_ok=True)
+    target.symlink_to(outside)
+    sheet = write_sheet(shop, sheet_text(row()))
+    result = run(shop, sheet)
+    assert result.exit_code == 1
+    assert [p[2] for p in refused_lines(result, sheet)] == ["id"]
+    assert target.is_symlink() and outside.read_text() == "not a record\n"
+
+
+def test_a_year_folder_leading_outside_the_shop_is_not_written_into(shop, tmp_path):
+    elsewhere = tmp_path / "elsewhere"
+    elsewhere.mkdir()
+    (shop / "builds" / "2021").symlink_to(elsewhere, target_is_directory=True)
+    sheet = write_sheet(shop, sheet_text(row()))
+    result = run(shop, sheet)
+    assert result.exit_code == 1
+    assert "leads outside" in result.stderr
+    assert list(elsewhere.iterdir()) == []
