@@ -184,6 +184,8 @@ def import_(ctx: Context, file: Path, map_file: Path, dry_run: bool) -> None:
         echo_safe(f"skipped row {done.row}: {done.id} is already in the shop, the same record ({done.path})")
     if result.unused_columns:
         echo_safe("not imported (no field in the map): " + ", ".join(result.unused_columns))
+    if result.left_out:
+        click.echo("left out (nothing in the map's columns): row " + ", ".join(map(str, result.left_out)))
     for problem in result.refused:
         click.echo(terminal_safe(str(problem)), err=True)
     counts = (f"{len(result.written)} {'would be written' if dry_run else 'written'}, "

@@ -140,3 +140,9 @@ def test_dates_in_the_maps_format_or_from_a_workbook():
         cells.date("31/09/2021", ("%d/%m/%Y",))  # September has 30 days
     with pytest.raises(CellError, match="not a date"):
         cells.date(44270, ("%d/%m/%Y",))
+
+
+def test_text_cells_keep_their_words_and_lose_carriage_returns():
+    assert cells.text("  two\r\nlines\rhere  ") == "two\nlines\nhere"
+    assert cells.text(dt.datetime(2021, 3, 14)) == "2021-03-14"
+    assert cells.text(142.0) == "142" and cells.text(0.30000000000000004) == "0.3"

@@ -343,3 +343,11 @@ def test_a_year_folder_leading_outside_the_shop_is_not_written_into(shop, tmp_pa
     assert result.exit_code == 1
     assert "leads outside" in result.stderr
     assert list(elsewhere.iterdir()) == []
+
+
+def test_a_row_with_nothing_in_the_maps_columns_is_left_out(shop):
+    sheet = write_sheet(shop, sheet_text(row()) + "," * (len(HEADERS) - 1) + "total: 1 build\r\n")
+    (shop.parent / "map.yaml").write_text(MAP.replace("  notes: Notes\n", ""))
+    result = run(shop, sheet)
+    assert result.exit_code == 0, result.output
+    assert "left out (nothing in the map's columns): row 3" in result.output

@@ -52,7 +52,7 @@ _EXAMPLES = {"length": "7/8, .875, 22.2mm or 1 1/8\"", "force": "410 lbf, 35# or
 
 def text(cell: object) -> str:
     """A cell as text: "" for blank; a workbook number without float noise (0.875, 142);
-    a workbook date as YYYY-MM-DD."""
+    a workbook date as YYYY-MM-DD; line breaks as LF; spaces around it dropped."""
     if cell is None:
         return ""
     if isinstance(cell, bool):
@@ -65,7 +65,7 @@ def text(cell: object) -> str:
         return cell.date().isoformat() if cell.time() == _dt.time() else cell.isoformat(" ")
     if isinstance(cell, (_dt.date, _dt.time)):
         return cell.isoformat()
-    return str(cell).strip()
+    return str(cell).replace("\r\n", "\n").replace("\r", "\n").strip()  # line ends as records have them
 
 
 def number_text(value: float) -> str:

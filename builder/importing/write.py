@@ -49,6 +49,7 @@ class ImportReport:
     skipped: list[Outcome] = field(default_factory=list)
     refused: list[CellProblem] = field(default_factory=list)  # every problem of every refused row
     unused_columns: list[str] = field(default_factory=list)
+    left_out: list[int] = field(default_factory=list)  # rows with nothing in the map's columns
 
     @property
     def refused_rows(self) -> list[int]:
@@ -77,7 +78,13 @@ def import_sheet(sheet_path: str | os.PathLike, map_path: str | os.PathLike, rec
     used = set(columns.values())
     report.unused_columns = [header for index, header in enumerate(sheet.headers) if header and index not in used]
 
-    rows = [reader.read(row) for row in sheet.rows]
+    mapped = sorted(used)
+    rows = []
+    for row in sheet.rows:  # a totals row or a remark in unmapped columns is not a build
+        if all(_blank(row.cells[index]) for index in mapped):
+            report.left_out.append(row.number)
+        else:
+            rows.append(reader.read(row))
     _refuse_shared_ids(rows, sheet.path)
     existing = _existing_ids(records / "builds")
     builds_dir = records / "builds"
@@ -101,6 +108,10 @@ def import_sheet(sheet_path: str | os.PathLike, map_path: str | os.PathLike, rec
                 existing[record.id] = target
     report.refused.sort(key=lambda p: (p.row, p.col, p.field))
     return report
+
+
+def _blank(cell: object) -> bool:
+    return cell is None or (isinstance(cell, str) and not cell.strip())
 
 
 def _read(sheet_path, imap: ImportMap) -> Sheet:
