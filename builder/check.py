@@ -113,7 +113,7 @@ def predicted_effort(result: CheckResult) -> float:
 
 
 def contract(result: CheckResult, primary: str = "imperial") -> dict:
-    """The `check --json` object: every key present, unknown values null (DESIGN section 6).
+    """The `check --json` object: every key present, unknown values null (README, "check --json").
 
     Numbers are SI-derived (N, mm, kPa, mL, %); messages are worded in the shop's units.
     """

@@ -104,8 +104,7 @@ def _run(action):
 @click.pass_obj
 def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
     """Check the shop rules, parts catalogue and build records (or only PATHS)."""
-    from builder.history import unsizable
-    from builder.located import unsizable_problems
+    from builder.located import unsizable, unsizable_problems
     from builder.records import validate_and_load
 
     rules, builds, problems = validate_and_load(ctx.records, list(paths),
@@ -221,6 +220,45 @@ def new(ctx: Context, build_id: str, like_id: str | None) -> None:
 
     path = _run(lambda: drafts.create(ctx.records, build_id, like_id))
     click.echo(f"Wrote {path}")
+
+
+@main.command("import")
+@click.argument("file", type=click.Path(path_type=Path))
+@click.option("--map", "map_file", required=True, type=click.Path(path_type=Path),
+              help="The import map: which column fills which record field (YAML).")
+@click.option("--dry-run", is_flag=True, help="Write nothing; print what would be written.")
+@click.pass_obj
+def import_(ctx: Context, file: Path, map_file: Path, dry_run: bool) -> None:
+    """Import past builds from a spreadsheet FILE (CSV or .xlsx), one build per row.
+
+    Valid rows are written as builds/<year>/<id>.yaml (never over an existing file); refused
+    rows are listed as FILE:row:column: field: message and the command exits 1.
+    """
+    from builder.importing import import_sheet
+
+    result = _run(lambda: import_sheet(file, map_file, ctx.records, dry_run=dry_run))
+    click.echo(f"Read {terminal_safe(result.sheet.path)} ({terminal_safe(result.sheet.describe())}): "
+               f"{len(result.sheet.rows)} rows.")
+    verb = "would write" if dry_run else "wrote"
+    for done in result.written:
+        echo_safe(f"{verb} {done.path} (row {done.row})")
+    for done in result.skipped:
+        echo_safe(f"skipped row {done.row}: {done.id} is already in the shop, the same record ({done.path})")
+    if result.unused_columns:
+        echo_safe("not imported (no field in the map): " + ", ".join(result.unused_columns))
+    if result.left_out:
+        click.echo("left out (nothing in the map's columns): row " + ", ".join(map(str, result.left_out)))
+    for problem in result.refused:
+        click.echo(terminal_safe(str(problem)), err=True)
+    counts = (f"{len(result.written)} {'would be written' if dry_run else 'written'}, "
+              f"{len(result.skipped)} skipped, {len(result.refused_rows)} refused")
+    if result.refused_rows:
+        counts += f" (rows {', '.join(map(str, result.refused_rows))})"
+    click.echo(("Dry run, nothing written: " if dry_run else "") + counts + ".")
+    if result.refused_rows:
+        click.echo("Refused rows are listed above; fix them in the sheet and import again "
+                   "(rows already written are then skipped).", err=True)
+        sys.exit(1)
 
 
 @main.group()

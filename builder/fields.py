@@ -12,7 +12,6 @@ Imports builder.model (choices) and builder.units (parsing the range texts) only
 """
 from __future__ import annotations
 
-import argparse
 import functools
 import json
 import sys
@@ -484,6 +483,8 @@ def schema_text(name: str) -> str:
 
 
 def main(argv: list[str] | None = None) -> int:
+    import argparse
+
     parser = argparse.ArgumentParser(prog="python -m builder.fields",
                                      description="Write the JSON Schemas from the field table.")
     parser.add_argument("--write", type=Path, metavar="SCHEMA_DIR",

@@ -4,13 +4,20 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
+from builder.engine.batch import size_all
 from builder.presentation import geometry_message
 from builder.problems import Problem
 from builder.records import locate
 
 if TYPE_CHECKING:
     from builder.engine import GeometryError
-    from builder.model import Build
+    from builder.model import Build, ShopRules
+
+
+def unsizable(builds: list[Build], rules: ShopRules) -> list[tuple[Build, GeometryError]]:
+    """Every build whose pedal cannot push its master, with the engine's reason (for
+    `fitment validate`, which needs no history)."""
+    return size_all(builds, rules)[1]
 
 
 def unsizable_problems(failures: list[tuple[Build, GeometryError]]) -> list[Problem]:

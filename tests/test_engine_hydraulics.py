@@ -87,7 +87,7 @@ def test_fluid_compression_from_bulk_modulus():
 
 
 def test_losses_include_line_master_and_slave_fluid():
-    # dV = e L p + V p / K with V = line + master swept + slave swept (DESIGN 4; Merritt).
+    # dV = e L p + V p / K with V = line + master swept + slave swept (Merritt).
     rules = make_rules()
     build = make_build()
     s = size_build(build, rules)

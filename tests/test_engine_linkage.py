@@ -21,7 +21,7 @@ def norton_slider(r: float, l: float, e: float, t: float) -> float:
 def norton_layout(r: float, l: float, t0: float, swing: float, frame=(0.0, 0.0, 0.0)):
     """Norton's crank at angle t0 with the slider line y = e = r sin t0, so the pushrod
     lies on the bore axis at rest; the whole picture rotated by frame[2] and moved by
-    frame[:2] (any consistent frame, DESIGN 3)."""
+    frame[:2] (any consistent frame)."""
     dx, dy, turn = frame
 
     def place(x, y):

@@ -168,7 +168,7 @@ def test_a_sound_build_raises_no_flags():
 
 
 def test_travel_short_fails_and_warns():
-    # Margin = bearing / needed - 1 (DESIGN 4): short -> fail, thin -> warn.
+    # Margin = bearing / needed - 1: short -> fail, thin -> warn.
     short = size_build(make_build(release_travel=0.6 * INCH), make_rules())
     assert short.margin < 0 and codes(short)["travel-short"] == "fail"
     flag = short.flags[0]
@@ -226,7 +226,7 @@ def test_pushrod_off_axis_and_pad_travel_mismatch():
 
 
 def test_engine_imports_no_pint_yaml_mkdocs_numpy_or_wording():
-    # Project rule (DESIGN 2): the engine is pure functions on SI floats and returns no words.
+    # Project rule (DEVELOPERS.md): the engine is pure functions on SI floats and returns no words.
     import pathlib
     import subprocess
     import sys

@@ -74,7 +74,7 @@ def test_spellings_against_pint(text, dimension, magnitude, pint_unit):
 
 
 def test_pint_alone_misreads_mixed_fraction():
-    # Why we parse magnitudes ourselves (DESIGN section 3): pint reads "1 1/16 in" as 1 * 1/16 in.
+    # Why we parse magnitudes ourselves: pint reads "1 1/16 in" as 1 * 1/16 in.
     assert UREG.Quantity("1 1/16 in").to("inch").magnitude == pytest.approx(0.0625)
     assert parse_quantity("1 1/16 in", "length") == pytest.approx(0.0254 * 17 / 16, rel=1e-15)
 

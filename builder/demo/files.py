@@ -50,29 +50,32 @@ def _written(value):
         return value.text
     if isinstance(value, dict):
         return {key: _written(item) for key, item in value.items()}
-    if isinstance(value, tuple):
+    if isinstance(value, (tuple, list)):
         return [_written(item) for item in value]
     return value
 
 
-def _schema(name: str, depth: int) -> str:
-    return f"{'../' * depth}schema/{name}.schema.json"
+def _document(schema: str, depth: int, values: dict, comments: dict | None = None,
+              header: str | None = None) -> str:
+    """A record file: the editor's schema line, an optional header comment, the values."""
+    modeline = f"yaml-language-server: $schema={'../' * depth}schema/{schema}.schema.json"
+    text = writer.dump(_written(values), modeline=modeline, comments=comments)
+    if header is None:
+        return text
+    first, rest = text.split("\n", 1)
+    return f"{first}\n# {header}\n{rest}"
 
 
 def shop_text() -> str:
-    return writer.document(_schema("shop", 1), _written(SHOP), SHOP_COMMENTS,
-                           header=["Invented demo shop: every name and number here is made up."])
+    comments = {(key,): comment for key, comment in SHOP_COMMENTS.items()}
+    return _document("shop", 1, SHOP, comments,
+                     "Invented demo shop: every name and number here is made up.")
 
 
 def parts_text(kind: str) -> str:
-    head = writer.document(_schema("parts", 2), {"kind": kind},
-                           header=[f"Invented demo catalogue: {kind}."])
-    lines = ["parts:"]
-    for entry in CATALOGUE[kind]:
-        body = writer.mapping_lines(_written({"id": entry.id, "label": entry.label} | entry.fields),
-                                    indent=4)
-        lines += ["  - " + body[0].lstrip()] + body[1:]
-    return head + "\n".join(lines) + "\n"
+    parts = [{"id": entry.id, "label": entry.label} | entry.fields for entry in CATALOGUE[kind]]
+    return _document("parts", 2, {"kind": kind, "parts": parts},
+                     header=f"Invented demo catalogue: {kind}.")
 
 
 def build_text(rec: Record) -> str:
@@ -82,18 +85,14 @@ def build_text(rec: Record) -> str:
     for key, section in rec.sections.items():
         if section is not None:
             values[key] = ({"part": section.part} if section.part else {}) | section.fields
-            comments[key] = section.comments
+            comments |= {(key, name): comment for name, comment in section.comments.items()}
     if rec.measured:
         values["measured"] = rec.measured
     if rec.outcome:
         values["outcome"] = rec.outcome
     if rec.notes:
         values["notes"] = rec.notes
-    lines = [writer.modeline(_schema("build", 3))]
-    for key, value in _written(values).items():  # each section with its own comments
-        lines += writer.mapping_lines({key: value}) if not isinstance(value, dict) else (
-            [f"{key}:"] + writer.mapping_lines(value, comments.get(key), indent=2))
-    return "\n".join(lines) + "\n"
+    return _document("build", 3, values, comments)
 
 
 def build_path(rec: Record) -> str:

@@ -1,10 +1,11 @@
 """Everything the report and the site need about a shop's builds, computed once."""
 from __future__ import annotations
 
-from collections.abc import Iterator, Mapping, Sequence
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field, replace
 
 from builder.engine import GeometryError, size_build
+from builder.engine.batch import size_all
 from builder.engine.flags import EFFORT_CODES, effort_band_flags, margin_flags
 from builder.engine.result import Sizing
 from builder.engine.travel import bearing_travel
@@ -86,7 +87,7 @@ def analyse(shop: Shop, k: int = 5) -> Analysis:
 
     A pedal layout that cannot push its master raises UnsizableBuilds naming every such build.
     """
-    sizings, failures = _size_all(shop.builds, shop.rules)
+    sizings, failures = size_all(shop.builds, shop.rules)
     if failures:
         raise UnsizableBuilds(failures)
     pairs = [(b, sizings[b.id]) for b in shop.builds]
@@ -146,21 +147,3 @@ def judged_on_history(sizing: Sizing, prediction: Prediction, rules: ShopRules) 
         if after_losses:
             flags = tuple(f for f in flags if f.code != "travel-short") + tuple(after_losses)
     return sizing if flags == sizing.flags else replace(sizing, flags=flags)
-
-
-def unsizable(builds: Sequence[Build], rules: ShopRules) -> list[tuple[Build, GeometryError]]:
-    """Every build whose pedal cannot push its master, with the engine's reason."""
-    return _size_all(builds, rules)[1]
-
-
-def _size_all(builds: Sequence[Build], rules: ShopRules
-              ) -> tuple[dict[str, Sizing], list[tuple[Build, GeometryError]]]:
-    """Sizings (without the effort series) of the builds that size, and the failures."""
-    sizings: dict[str, Sizing] = {}
-    failures: list[tuple[Build, GeometryError]] = []
-    for build in builds:
-        try:
-            sizings[build.id] = size_build(build, rules, with_curve=False)
-        except GeometryError as error:
-            failures.append((build, error))
-    return sizings, failures

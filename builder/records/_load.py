@@ -5,7 +5,6 @@ again carefully, with positions, only when something in it needs reporting.
 """
 from __future__ import annotations
 
-import difflib
 import os
 from collections.abc import Callable, Iterable
 from pathlib import Path
@@ -199,6 +198,8 @@ def _find_part(catalogue: dict, section: str, part_id: str, report: f.ProblemCol
     part = catalogue.get(kind, {}).get(part_id)
     if part is not None:
         return part
+    import difflib  # only when a part is unknown
+
     other = next((k for k, parts in catalogue.items() if part_id in parts), None)
     ids = list(catalogue.get(kind, {}))
     close = difflib.get_close_matches(part_id, ids, n=3, cutoff=0.4)

@@ -6,7 +6,6 @@ and gives the detailed errors.
 """
 from __future__ import annotations
 
-import difflib
 import functools
 import json
 
@@ -16,6 +15,7 @@ from builder.units import DIMENSIONS, QuantityError, parse_quantity
 SCHEMA_DIR = data_dir("schema")
 _QUANTITY_DEFS = ("length", "signed_length", "area", "force", "pressure", "angle", "hose_expansion", "fraction")
 _SKIPPED = ("anyOf", "not")  # section completeness and bore-or-area: the records code words these
+_ANNOTATIONS = ("title", "description", "$schema")  # words for editors: nothing to check
 
 
 @functools.cache
@@ -34,7 +34,8 @@ def quantity_patterns(name: str) -> dict[str, str]:
 def fast_schema(name: str) -> dict:
     """`name` for the compiled fast check: $refs written out (each costs a call there), and
     without what the records code checks on every path: anyOf / not (section completeness,
-    bore or area) and the quantity patterns (fields.quantity). Anything the lighter check lets
+    bore or area) and the quantity patterns (convert.quantity), and without annotations
+    (titles and descriptions), which only make the compiled code longer. Anything the lighter check lets
     through is still caught on the fast path; see tests/test_records_schema.py."""
     full = schema(name)
     patterns = set(quantity_patterns(name).values())
@@ -50,7 +51,8 @@ def fast_schema(name: str) -> dict:
             node = {**full["$defs"][node["$ref"].removeprefix("#/$defs/")],
                     **{key: value for key, value in node.items() if key != "$ref"}}
         return {key: lighter(value, key == "properties") for key, value in node.items()
-                if key not in (*_SKIPPED, "$defs") and not (key == "pattern" and value in patterns)}
+                if key not in (*_SKIPPED, *_ANNOTATIONS, "$defs")
+                and not (key == "pattern" and value in patterns)}
 
     return lighter(full)
 
@@ -181,5 +183,7 @@ def _kind_of(value: object) -> str:
 
 
 def _nearest(word: str, choices: list[str]) -> str:
+    import difflib  # only for an unknown key
+
     close = difflib.get_close_matches(word, choices, n=3, cutoff=0.5)
     return f"; did you mean {' or '.join(close)}?" if close else f"; allowed: {', '.join(choices)}"

@@ -8,6 +8,8 @@ each in a fresh child process so one figure does not warm the next:
   (yaml.load(..., Loader=yaml.CSafeLoader)) of the same files in the same process, file
   reads included in both; the two alternate, best of ROUNDS each;
 - the similar-builds query (SimilarityIndex.query) over the loaded history;
+- `fitment validate` as a whole process (imports included) against a process that only
+  parses the same files with libyaml, alternating, best of ROUNDS each;
 - `fitment check PROPOSAL` end to end as a subprocess, process start included, against a
   synthetic shop and the demo shop in records/;
 - peak memory (ru_maxrss) of a child that loads, sizes and analyses the largest shop;
@@ -51,8 +53,18 @@ TARGET_PEAK_MB = 300.0
 TARGET_SITE_RATIO = 4.5
 TARGET_OURS_SHARE = 0.25
 
-FULL = {"load": (1_000, 10_000), "query": 10_000, "check": 1_000, "memory": 10_000, "site": (250, 1_000)}
-QUICK = {"load": (200, 1_000), "query": 1_000, "check": 200, "memory": 1_000, "site": (50, 200)}
+FULL = {"load": (1_000, 10_000), "query": 10_000, "check": 1_000, "memory": 10_000, "site": (250, 1_000),
+        "process": 5_000}
+QUICK = {"load": (200, 1_000), "query": 1_000, "check": 200, "memory": 1_000, "site": (50, 200),
+         "process": 1_000}
+BARE_PARSE = """\
+import os, sys, yaml
+for d, _, names in os.walk(sys.argv[1]):
+    for n in names:
+        if n.endswith((".yaml", ".yml")):
+            with open(os.path.join(d, n), "rb") as handle:
+                yaml.load(handle.read(), Loader=yaml.CSafeLoader)
+"""
 
 
 # ----------------------------------------------------------------------------- children
@@ -245,6 +257,24 @@ def bench_query(load_results: dict, n: int) -> None:
          f"{r['candidates']} candidates")
 
 
+def bench_validate_process(records: Path, n: int) -> None:
+    """`fitment validate` as a process against a process that only parses the files."""
+    commands = {"ours": [FITMENT, "--records", str(records), "validate"],
+                "bare": [PYTHON, "-c", BARE_PARSE, str(records)]}
+    best = {name: float("inf") for name in commands}
+    for _ in range(ROUNDS):
+        for name, command in commands.items():
+            t0 = time.perf_counter()
+            done = subprocess.run(command, capture_output=True, text=True)
+            best[name] = min(best[name], time.perf_counter() - t0)
+            if done.returncode != 0:
+                raise SystemExit(f"{name} failed:\n{done.stderr}")
+    ratio = best["ours"] / best["bare"]
+    line(f"fitment validate {n} builds vs bare parse (processes)", f"{ratio:.2f}x",
+         f"<= {TARGET_LOAD_RATIO}x", ratio <= TARGET_LOAD_RATIO,
+         f"ours {best['ours']:.2f} s, bare {best['bare']:.2f} s, process start and imports included")
+
+
 def bench_check(records: Path, label: str, proposal: Path) -> None:
     walls, cpus = [], []
     for _ in range(CHECK_RUNS):
@@ -306,7 +336,7 @@ def main(argv: list[str] | None = None) -> int:
     work.mkdir(parents=True, exist_ok=True)
     started = time.perf_counter()
     try:
-        sizes = {*plan["load"], plan["query"], plan["check"], plan["memory"]}
+        sizes = {*plan["load"], plan["query"], plan["check"], plan["memory"], plan["process"]}
         if not args.no_site:
             sizes |= set(plan["site"])
         shops = generate(work, sizes, args.seed)
@@ -315,6 +345,7 @@ def main(argv: list[str] | None = None) -> int:
         print(f"python {sys.version.split()[0]}, {os.cpu_count()} cpus, load average "
               f"{os.getloadavg()[0]:.1f}; synthetic shop: {shop_mix(shops[max(shops)])}")
         loads = bench_load(shops, plan["load"])
+        bench_validate_process(shops[plan["process"]], plan["process"])
         bench_query(loads, plan["query"])
         bench_check(shops[plan["check"]], f"{plan['check']}-build shop", proposal)
         bench_check(DEMO_RECORDS, f"demo shop ({len(list((DEMO_RECORDS / 'builds').rglob('*.yaml')))} builds)",

@@ -1,0 +1,23 @@
+"""Sizing many builds at once: the figures of those that size, the reasons of those that do not."""
+from __future__ import annotations
+
+from collections.abc import Iterable
+
+from builder.engine.linkage import GeometryError
+from builder.engine.result import Sizing
+from builder.engine.size import size_build
+from builder.model import Build, ShopRules
+
+
+def size_all(builds: Iterable[Build], rules: ShopRules
+             ) -> tuple[dict[str, Sizing], list[tuple[Build, GeometryError]]]:
+    """Sizings by build id (without the plotted effort series), and each build whose pedal
+    cannot push its master with the engine's reason."""
+    sizings: dict[str, Sizing] = {}
+    failures: list[tuple[Build, GeometryError]] = []
+    for build in builds:
+        try:
+            sizings[build.id] = size_build(build, rules, with_curve=False)
+        except GeometryError as error:
+            failures.append((build, error))
+    return sizings, failures
