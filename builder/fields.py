@@ -26,6 +26,7 @@ from builder.units import parse_quantity
 QUANTITY, TEXT, NAME, CHOICE, CURVE, LAYOUT, POINT, DATE, BUILD_ID, PART_ID, GROUP = (
     "quantity", "text", "name", "choice", "curve", "layout", "point", "date", "build_id", "part_id",
     "group")  # NAME: text that must not be empty
+NAMES, CHOICES = "names", "choices"  # a list of codes; a list of some of the field's choices
 
 PART_ID_PATTERN = "^[A-Z0-9]+(-[A-Z0-9]+)*$"
 _QUANTITY_PATTERN = r"^\s*[0-9.][0-9./ eE+-]*[^\s0-9./+-]"
@@ -256,6 +257,13 @@ SHOP_FIELDS = (
        default="3.2 mm"),
     _q("shop.max_pushrod_angle", "largest pushrod angle", "Flag the pushrod past this angle to "
        "the bore axis.", "angle", "0.5 deg", "45 deg", default="5 deg"),
+    Field("shop.families", NAMES, "gearbox families", "Gearbox family codes the shop knows "
+          "besides those its catalogue's gearboxes use, e.g. [QX-5, VK-4]; a build's family must "
+          "be one of these or a catalogue gearbox's."),
+    Field("shop.publish", CHOICES, "published statuses", "Statuses of the builds the published "
+          "site shows. Default: measured, verified, rejected. Drafts are shown only by "
+          "`fitment site build --include-drafts` (an internal copy).",
+          choices=model.PUBLISHABLE, default=", ".join(model.PUBLISHABLE)),
 )
 
 
@@ -324,6 +332,11 @@ def field_schema(field: Field) -> dict:
         node = {"type": "string", "minLength": 1}
     elif kind == CHOICE:
         node = {"enum": list(field.choices)}
+    elif kind == NAMES:
+        node = {"type": "array", "uniqueItems": True,
+                "items": {"type": list(_TEXT_TYPE), "minLength": 1}}
+    elif kind == CHOICES:
+        node = {"type": "array", "uniqueItems": True, "items": {"enum": list(field.choices)}}
     elif kind == DATE:
         node = {"type": "string", "pattern": "^[0-9]{4}-[0-9]{2}-[0-9]{2}$"}
     elif kind == BUILD_ID:

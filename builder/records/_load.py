@@ -81,7 +81,9 @@ def _convert_rules(data: dict, report: f.ProblemCollector) -> model.ShopRules | 
     )
     if report.problems or None in band or None in hoses.values() or None in values.values():
         return None
-    return model.ShopRules(site_title=str(data["site_title"]), display_units=data["display_units"], **values)
+    return model.ShopRules(site_title=str(data["site_title"]), display_units=data["display_units"],
+                           families=tuple(f.text(code) for code in data.get("families") or ()),
+                           publish=tuple(data.get("publish", model.PUBLISHABLE)), **values)
 
 
 def parse_rules(text: str, shown: str = "shop.yaml") -> model.ShopRules:
