@@ -169,8 +169,16 @@ def new(ctx: Context, build_id: str, like_id: str | None) -> None:
     """Write a new draft record BUILD_ID (never overwrites an existing file)."""
     from builder import drafts
 
-    path = _run(lambda: drafts.create(ctx.records, build_id, like_id))
-    click.echo(f"Wrote {path}")
+    def create():
+        try:
+            return drafts.create(ctx.records, build_id, like_id), []
+        except drafts.LeftToFill as left:
+            return left.path, left.problems
+
+    path, to_fill = _run(create)
+    click.echo(f"Wrote {path}" + ("; fill in before sizing it:" if to_fill else ""))
+    for problem in to_fill:
+        click.echo(terminal_safe(f"  {problem}"))
 
 
 @main.group()

@@ -179,9 +179,43 @@ def quantity_message(error: QuantityError) -> str:
     return text
 
 
+def _either(texts: Iterable[str]) -> str:
+    return " or ".join(texts)
+
+
+def encoding_message(encoding: str) -> str:
+    """A record file saved in a wide encoding (UTF-16 or UTF-32) instead of UTF-8."""
+    return (f"the file is {encoding} text, not UTF-8; save it again as UTF-8 (in most editors: "
+            "save with encoding, UTF-8)")
+
+
 def accepted_range(dimension: str, low: float, high: float) -> str:
     """"; this field accepts 0.118 in (3 mm) to 2.362 in (60 mm)"."""
     return f"; this field accepts {quantity(low, dimension)} to {quantity(high, dimension)}"
+
+
+# --- records ------------------------------------------------------------------------------
+
+def placeholder_message(label: str, found: str) -> str:
+    """A template value left in a record: "fill in the vehicle: 'XX' is a placeholder"."""
+    return f"fill in the {label}: {found!r} is a placeholder left for you to replace"
+
+
+def swapped_lengths_message(pad: float, clevis: float, layout: bool = False) -> str:
+    """Pivot-to-pad shorter than pivot-to-clevis (m): a pedal ratio below 1."""
+    where = "in this layout the pad is" if layout else "pivot to pad is"
+    return (f"{where} {quantity(pad, 'length')} from the pivot, shorter than the clevis at "
+            f"{quantity(clevis, 'length')}: a pedal ratio of {ratio(pad / clevis)} (a pedal "
+            "multiplies the driver's force, so the pad sits further out); the two lengths "
+            "look swapped")
+
+
+def unknown_family_message(code: str, nearest: Iterable[str], known: int) -> str:
+    """A gearbox family neither a catalogue gearbox nor the shop's `families` rule names."""
+    close = list(nearest)
+    hint = f"nearest: {', '.join(close)}" if close else f"the shop knows {known} families"
+    return (f"unknown gearbox family {code!r}; {hint}. A family is one a catalogue gearbox "
+            "uses (parts/gearboxes.yaml) or one listed under `families` in shop.yaml")
 
 
 # --- pedal geometry -------------------------------------------------------------------------

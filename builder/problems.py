@@ -1,7 +1,9 @@
 """Located input problems: every bad input becomes one of these, never a traceback."""
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field as _field
+
+PLACEHOLDER = "placeholder"  # Problem.code of a template value left in a record
 
 
 @dataclass(frozen=True, slots=True)
@@ -9,7 +11,9 @@ class Problem:
     """One thing wrong with an input file, located for a person to fix.
 
     Printed as ``path:line:col: field: message``; line and col are 1-based,
-    0 when the position is unknown (for instance a missing file).
+    0 when the position is unknown (for instance a missing file). `code`, when set, says
+    what kind of problem it is for a caller that treats some kinds apart (PLACEHOLDER); it
+    is not part of the printed line and two problems differing only in it are equal.
     """
 
     path: str
@@ -17,6 +21,7 @@ class Problem:
     col: int
     field: str
     message: str
+    code: str | None = _field(default=None, compare=False)
 
     def __str__(self) -> str:
         return f"{self.path}:{self.line}:{self.col}: {self.field}: {self.message}"

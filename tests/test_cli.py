@@ -176,9 +176,17 @@ def test_new_like_copies_inputs_then_refuses_a_second_time(shop_copy: Path):
     assert run("validate", records=shop_copy).exit_code == 0
 
 
-def test_new_template_validates_and_rejects_bad_ids(shop_copy: Path):
-    assert run("new", "HW-0998", records=shop_copy).exit_code == 0
-    assert run("validate", records=shop_copy).exit_code == 0
+def test_new_template_lists_what_to_fill_in_and_rejects_bad_ids(shop_copy: Path):
+    written = run("new", "HW-0998", records=shop_copy)
+    assert written.exit_code == 0, written.output
+    assert "fill in before sizing it" in written.output
+    path = next(shop_copy.glob("builds/*/HW-0998.yaml"))
+    left = run("validate", records=shop_copy)  # the template's placeholders are problems
+    assert left.exit_code == 1
+    fields = {line.split(": ")[1] for line in left.output.splitlines() if line.startswith(str(path))}
+    assert fields == {"technician", "vehicle", "gearbox.family"}
+    assert left.output.count("fill in the ") == 3
+    path.unlink()
     bad = run("new", "../evil", records=shop_copy)
     assert bad.exit_code == 1 and "expected an id like" in bad.output
     existing = run("new", ALL_BUILDS[0].stem, records=shop_copy)

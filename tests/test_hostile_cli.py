@@ -314,6 +314,8 @@ def _run_on_escapes(shop: Path, args: list[str]):
     for key in ("technician", "vehicle", "outcome"):
         text = re.sub(rf"^{key}: .*$", lambda _, key=key: f"{key}: {json.dumps(key + ESCAPES)}", text, flags=re.M)
     text = text.replace("family: BQ-4F", f"family: {json.dumps('FX' + ESCAPES)}")
+    with (shop / "shop.yaml").open("a") as rules:  # a family the shop declares, escapes and all
+        rules.write(f"families: [{json.dumps('FX' + ESCAPES)}]\n")
     text = text.replace("  bracket: cast boss, spacer plate", f"  bracket: {json.dumps(ESCAPES)}")
     target.write_text(text)
     result = invoke(shop, *[a.format(target=target) for a in args])
