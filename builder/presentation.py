@@ -172,6 +172,15 @@ def quantity_message(error: QuantityError) -> str:
         "out-of-range": lambda: f"{found} is outside the plausible range "
                                 f"{quantity(e.low, e.dimension)} to {quantity(e.high, e.dimension)} "
                                 "for this field",
+        "comma": lambda: f"expected {want}; found {found!r} with a comma in the number, "
+                         f"probably meant {_either(e.meant)} (a decimal point, no thousands "
+                         "separator)",
+        "inch-mark": lambda: f"expected {want}; found {found!r} with the inch mark {e.unit}, "
+                             f"probably meant {_either(e.meant)}",
+        "foot-mark": lambda: f"expected {want}; found {found!r} with the foot mark {e.unit}, "
+                             f"probably meant {_either(e.meant)}",
+        "mass-for-force": lambda: f"expected {want}; found {found!r}, a mass ({e.unit}) where a "
+                                  f"force belongs, probably meant {_either(e.meant)}",
     }
     text = sentences[e.reason]()
     if e.hint:

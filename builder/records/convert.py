@@ -107,6 +107,8 @@ def quantity(value: object, key: str, report: ProblemCollector, where: tuple) ->
         result = parse_quantity(value, dimension, signed=low < 0)
         check_range(result, low, high, dimension, value)
     except QuantityError as error:
+        if len(error.meant) > 1:
+            error = _plausible_readings(error, key)
         message = quantity_message(error)
         report(where, message if error.reason == "out-of-range" else message + accepted(key))
         return None
@@ -115,6 +117,22 @@ def quantity(value: object, key: str, report: ProblemCollector, where: tuple) ->
             _accepted.clear()
         _accepted[value, key] = result
     return result
+
+
+def _plausible_readings(error: QuantityError, key: str) -> QuantityError:
+    """The error with only the readings of a slip (1,125 in: 1.125 in or 1125 in) that fall in
+    the field's plausible range; all of them when none does."""
+    dimension, low, high = PLAUSIBLE[key]
+    plausible = []
+    for reading in error.meant:
+        try:
+            value = parse_quantity(reading, dimension, signed=low < 0)
+        except QuantityError:
+            continue
+        if low <= value <= high:
+            plausible.append(reading)
+    error.meant = tuple(plausible) or error.meant
+    return error
 
 
 def accepted(key: str | None) -> str:
