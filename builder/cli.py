@@ -10,6 +10,7 @@ from pathlib import Path
 
 import click
 
+from builder.model import FORK_TIP_MOVES, STATUSES
 from builder.problems import InputError, Problem, terminal_safe
 
 CAUTION = (
@@ -74,7 +75,22 @@ def progress_reporter(label: str):
     return report
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+class WholeLines(click.Group):
+    """A command group whose help lists each command's whole first sentence, wrapped to the
+    terminal, instead of cutting it at the column width with '...'."""
+
+    def format_commands(self, ctx: click.Context, formatter: click.HelpFormatter) -> None:
+        rows = []
+        for name in self.list_commands(ctx):
+            command = self.get_command(ctx, name)
+            if command is not None and not command.hidden:
+                rows.append((name, command.get_short_help_str(limit=1_000)))
+        if rows:
+            with formatter.section("Commands"):
+                formatter.write_dl(rows)
+
+
+@click.group(cls=WholeLines, context_settings={"help_option_names": ["-h", "--help"]})
 @click.option(
     "--records",
     type=click.Path(file_okay=False, path_type=Path),
@@ -140,15 +156,39 @@ def check(ctx: Context, file: Path, as_json: bool, k: int) -> None:
 
 @main.command()
 @click.option("--format", "fmt", type=click.Choice(["table", "csv", "json"]), default="table",
-              show_default=True)
+              show_default=True, help="table: display units, words; csv and json: SI-derived units.")
+@click.option("--family", help="Only builds of this gearbox family, e.g. QX-5.")
+@click.option("--fork", type=click.Choice(FORK_TIP_MOVES),
+              help="Only builds whose fork tip moves this way (none: concentric slave).")
+@click.option("--status", type=click.Choice(STATUSES), help="Only builds with this status.")
 @click.pass_obj
-def report(ctx: Context, fmt: str) -> None:
+def report(ctx: Context, fmt: str, family: str | None, fork: str | None, status: str | None) -> None:
     """One row per build: ratios, computed and measured effort, margin, flags."""
     from builder import report as reporting
 
     analysis = _run(ctx.analysis)
-    rows = reporting.report_rows(analysis)
-    echo_safe(reporting.render(rows, fmt, reporting.REPORT_TABLE_COLUMNS), nl=False)
+    if family is not None:
+        _known_family(analysis, family)
+    filters = reporting.Filters(family, fork, status)
+    if fmt == "table":
+        text = reporting.report_table(analysis, analysis.shop.rules.display_units, filters)
+    else:
+        text = reporting.render(reporting.report_rows(analysis, filters), fmt)
+    echo_safe(text, nl=False)
+
+
+def _known_family(analysis, family: str) -> None:
+    """A usage error (exit 2) for a --family the shop has never heard of, naming the nearest."""
+    import difflib
+
+    shop = analysis.shop
+    known = ({b.gearbox.family for b in shop.builds} | set(shop.rules.families)
+             | {p.section.family for p in shop.parts.get("gearboxes", {}).values()})
+    if family not in known:
+        close = difflib.get_close_matches(family.upper(), sorted(known), n=3, cutoff=0.5)
+        hint = f"nearest: {', '.join(close)}" if close else f"known: {', '.join(sorted(known))}"
+        raise click.BadParameter(f"no gearbox family {family!r} in this shop; {hint}",
+                                 param_hint="--family")
 
 
 @main.command()
@@ -158,7 +198,7 @@ def calibration(ctx: Context) -> None:
     from builder import report as reporting
 
     analysis = _run(ctx.analysis)
-    echo_safe(reporting.render(reporting.calibration_rows(analysis), "table"), nl=False)
+    echo_safe(reporting.calibration_table(analysis), nl=False)
 
 
 @main.command()
@@ -181,7 +221,7 @@ def new(ctx: Context, build_id: str, like_id: str | None) -> None:
         click.echo(terminal_safe(f"  {problem}"))
 
 
-@main.group()
+@main.group(cls=WholeLines)
 def site() -> None:
     """Publish the fitment reference as a static site."""
 

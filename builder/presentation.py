@@ -124,6 +124,43 @@ def in_unit(value: float | None, unit: str, digits: int) -> float | None:
     return round(value / scale, digits)
 
 
+def unit_label(dimension: str, system: str) -> str:
+    """The unit a figure of `dimension` is shown in: unit_label("length", "metric") -> "mm";
+    "%" for a fraction and "" for a plain ratio."""
+    if dimension == "ratio":
+        return ""
+    return DISPLAY[dimension][system][0]
+
+
+def number_in(value_si: float | None, dimension: str, system: str, signed: bool = False) -> str:
+    """A figure as a bare number in unit_label(dimension, system), for a column whose heading
+    names the unit: number_in(0.022225, "length", "imperial") -> "0.875"; a ratio with two
+    decimals, a fraction as a percentage with one; None is a dash.
+
+    >>> number_in(0.022225, "length", "metric"), number_in(5.6, "ratio", "metric")
+    ('22.2', '5.60')
+    >>> number_in(0.082, "fraction", "imperial", signed=True), number_in(None, "force", "metric")
+    ('+8.2', '—')
+    """
+    if value_si is None or not math.isfinite(value_si):
+        return NONE
+    if dimension == "ratio":
+        return f"{value_si:.2f}"
+    if dimension == "fraction":
+        return f"{value_si * 100:+.1f}" if signed else f"{value_si * 100:.1f}"
+    label, most_decimals = DISPLAY[dimension][system]
+    return number(value_si / SEEDED_UNITS[label][0], most_decimals)
+
+
+def spread(median: float | None, mad: float | None, as_percent: bool = True) -> str:
+    """A median with its median absolute deviation: "85.0 % ± 1.8 %" or "0.94 ± 0.01"."""
+    if median is None:
+        return NONE
+    if as_percent:
+        return f"{percent(median)} ± {percent(mad or 0.0)}"
+    return f"{factor(median)} ± {factor(mad or 0.0)}"
+
+
 def chart_unit(dimension: str, system: str) -> tuple[str, float]:
     """(unit label, SI value of one unit) for a chart axis of `dimension`."""
     label = CHART_UNITS[system][dimension]
@@ -131,6 +168,37 @@ def chart_unit(dimension: str, system: str) -> tuple[str, float]:
 
 
 # --- words for fields -----------------------------------------------------------------------
+
+# part kind (a catalogue file) -> (one, several)
+PART_KIND_WORDS = {
+    "gearboxes": ("Gearbox", "Gearboxes"), "clutches": ("Clutch", "Clutches"),
+    "masters": ("Master cylinder", "Master cylinders"), "slaves": ("Slave cylinder", "Slave cylinders"),
+    "pedals": ("Pedal assembly", "Pedal assemblies"),
+}
+# record choices as people read them (the record keeps its own spelling)
+CHOICE_WORDS = {
+    "line.hose": {"rubber": "rubber", "braided_ptfe": "braided PTFE", "steel": "steel"},
+    "gearbox.fork_tip_moves": {"forward": "forward", "rearward": "rearward",
+                               "none": "none (concentric slave)"},
+}
+FORK_WORDS = {"forward": "fork tip moves forward", "rearward": "fork tip moves rearward",
+              "none": "concentric slave (no fork)"}
+
+
+def part_kind(kind: str, several: bool = False) -> str:
+    """"Master cylinder" / "Master cylinders" for the catalogue file `kind`."""
+    one, many = PART_KIND_WORDS.get(kind, (kind, kind))
+    return many if several else one
+
+
+def choice(key: str, value: str) -> str:
+    """A record choice as words: choice("line.hose", "braided_ptfe") -> "braided PTFE"."""
+    return CHOICE_WORDS.get(key, {}).get(value, value)
+
+
+def fork_words(direction: str) -> str:
+    return FORK_WORDS.get(direction, direction)
+
 
 def noun(dimension: str) -> str:
     """'length' -> 'a length', 'angle' -> 'an angle', 'hose_expansion' -> 'a hose expansion'."""
@@ -296,6 +364,20 @@ def flag_sentence(flag: Flag, primary: str = "imperial") -> str:
 
 def _signed(flag: Flag, name: str) -> str:
     return percent(flag.value(name), signed=True)
+
+
+FLAG_WORDS = {
+    "travel-short": "travel short", "master-volume-short": "master volume short",
+    "slave-overtravel": "slave over-travel", "master-bottoms-early": "master bottoms early",
+    "release-late": "release late", "effort-high": "pedal heavy", "effort-low": "pedal light",
+    "pressure-over-rating": "pressure over rating", "pushrod-off-axis": "pushrod off axis",
+    "linkage-over-centre": "linkage over centre", "pad-travel-mismatch": "pad travel mismatch",
+}
+
+
+def flag_words(code: str) -> str:
+    """A flag in two or three words, for a table cell: "travel short"."""
+    return FLAG_WORDS.get(code, code.replace("-", " "))
 
 
 def flag_line(flag: Flag, primary: str = "imperial") -> str:
