@@ -229,14 +229,17 @@ def site() -> None:
 @site.command("build")
 @click.option("--out", type=click.Path(file_okay=False, path_type=Path), default=Path("site"),
               show_default=True, help="Where the finished site goes (replaced only on success).")
+@click.option("--include-drafts", is_flag=True,
+              help="Also publish draft builds: an internal copy, not for the public.")
 @click.pass_obj
-def site_build(ctx: Context, out: Path) -> None:
+def site_build(ctx: Context, out: Path, include_drafts: bool) -> None:
     """Build the site from the records; the previous site stays if anything fails."""
     from builder.site import build_site
 
     analysis = _run(ctx.analysis)
-    _run(lambda: build_site(analysis, out, progress=progress_reporter("writing pages")))
-    click.echo(f"Site written to {out}")
+    _run(lambda: build_site(analysis, out, progress=progress_reporter("writing pages"),
+                            include_drafts=include_drafts))
+    click.echo(f"Site written to {out}" + (" (internal copy: drafts included)" if include_drafts else ""))
 
 
 @site.command("serve")

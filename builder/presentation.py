@@ -26,7 +26,7 @@ from builder.units import DIMENSIONS, SEEDED_UNITS
 
 if TYPE_CHECKING:
     from builder.engine.result import Flag
-    from builder.history.calibration import Basis, Prediction
+    from builder.history.calibration import Basis, GroupCalibration, Prediction
     from builder.history.similar import Difference
     from builder.units import QuantityError
 
@@ -414,6 +414,23 @@ def prediction_note(prediction: Prediction) -> str | None:
     if prediction.interval is None:
         return "no interval yet: too few leave-one-out residuals"
     return None
+
+
+# --- calibration ----------------------------------------------------------------------------
+
+CALIBRATION_HEADINGS = ("Group", "Builds", "Efficiency used", "Own median \u00b1 MAD", "Weight",
+                        "Typical error", "90 % of errors below", "Builds with travel",
+                        "Travel factor used", "Own median \u00b1 MAD")
+
+
+def calibration_cells(group: GroupCalibration) -> list[str]:
+    """One calibration group as the site and the terminal show it: efficiencies and errors
+    as percentages, the family weight and travel factors as factors."""
+    return [group.name, str(group.n), percent(group.efficiency),
+            spread(group.efficiency_median, group.efficiency_mad), factor(group.weight),
+            percent(group.loo_median_abs_err), percent(group.loo_p90_abs_err),
+            str(group.n_travel), factor(group.travel_factor),
+            spread(group.travel_factor_median, group.travel_factor_mad, as_percent=False)]
 
 
 # --- similar builds -------------------------------------------------------------------------

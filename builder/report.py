@@ -173,25 +173,10 @@ def _groups(analysis: Analysis) -> list:
     return [("shop-wide", calibration.shop)] + sorted(calibration.families.items())
 
 
-CALIBRATION_HEADINGS = ("Group", "Builds", "Efficiency used", "Own median \u00b1 MAD", "Weight",
-                        "Typical error", "90 % of errors below", "Builds with travel",
-                        "Travel factor used", "Own median \u00b1 MAD")
-
-
-def calibration_cells(group) -> list[str]:
-    """One calibration group as the site and the terminal show it: efficiencies and errors
-    as percentages, the family weight and travel factors as factors."""
-    return [group.name, str(group.n), say.percent(group.efficiency),
-            say.spread(group.efficiency_median, group.efficiency_mad), say.factor(group.weight),
-            say.percent(group.loo_median_abs_err), say.percent(group.loo_p90_abs_err),
-            str(group.n_travel), say.factor(group.travel_factor),
-            say.spread(group.travel_factor_median, group.travel_factor_mad, as_percent=False)]
-
-
 def calibration_table(analysis: Analysis) -> str:
     """`fitment calibration`: the calibration page's figures as a terminal table."""
-    return aligned(list(CALIBRATION_HEADINGS),
-                   [calibration_cells(group) for _, group in _groups(analysis)])
+    return aligned(list(say.CALIBRATION_HEADINGS),
+                   [say.calibration_cells(group) for _, group in _groups(analysis)])
 
 
 def _spreadsheet_safe(value):
