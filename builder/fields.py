@@ -222,7 +222,7 @@ SECTION = {section.name: section for section in SECTIONS}
 PART_KINDS = {section.catalogue: section.name for section in SECTIONS if section.catalogue}
 
 PART_FIELDS = (
-    Field("id", PART_ID, "part id", "Catalogue part id, e.g. MC-750 (capitals, digits, "
+    Field("id", PART_ID, "part id", "Catalogue part id, e.g. MC-A3 (capitals, digits, "
           "hyphens).", required=True),
     _text("label", "label", "Short description shown with the id."),
 )
