@@ -182,7 +182,7 @@ def test_family_sections_and_builds_weigh_more_in_search(sites):
         boosts.setdefault(kind, set()).add(doc.get("boost"))
     assert boosts["reference"] == {8} and boosts["build"] == {2}
     assert boosts["parts"] == {None} and boosts["builds"] == {None}  # the index of builds
-    sections = [d for d in index_of(public) if d["location"].startswith("reference/#family-")]
+    sections = [d for d in index_of(public) if d["location"].startswith("reference/#")]
     assert {d["title"] for d in sections} >= {"QX-5 \u2014 fork tip moves rearward"}
 
 
@@ -198,3 +198,18 @@ def test_pages_speak_plain_words(sites):
             words = text_of(page)
             assert not re.search(r"Clutchs|Gearboxs|assemblys|braided_ptfe|fork_tip_moves", words), page
     assert "braided PTFE" in text_of(public / "builds" / "TS-100" / "index.html")
+
+
+def test_record_text_in_a_family_heading_stays_text(tmp_path):
+    from site_shops import HOSTILE, HOSTILE_TEXT, build
+
+    hostile = shop(2, root=str(tmp_path / "records"))
+    hostile = dataclasses.replace(hostile, builds=hostile.builds + (
+        build(9, text=HOSTILE_TEXT + " { .evil #x }", build_id="ZZ-667", status="verified"),))
+    out = tmp_path / "site"
+    build_site(analyse(hostile), out)
+    html = (out / "reference" / "index.html").read_text(encoding="utf-8")
+    assert 'class="evil"' not in html and 'id="x"' not in html
+    assert "<script>window.__pwned" not in html and "onerror=" not in html.replace("onerror=&quot;", "")
+    shown = text_of(out / "reference" / "index.html")
+    assert " ".join(HOSTILE[0].split()) in shown  # the family code, shown as written

@@ -326,7 +326,8 @@ def effort_scatter(data: SiteData) -> str:
 
 
 def family_anchor(family: str, direction: str) -> str:
-    """The id of a family section on the reference page (built from slug(), never raw text)."""
+    """The id of a family section on the reference page: from slug() (letters, digits, dot,
+    hyphen, underscore), never raw record text."""
     return f"family-{slug(family)}-{direction}".lower().replace(".", "-")
 
 
@@ -352,11 +353,12 @@ def reference_page(data: SiteData) -> str:
             f"[{md(family)}, {md(say.fork_words(direction))}](#{family_anchor(family, direction)})"
             for family, direction in groups))
     for (family, direction), combos in groups.items():
-        out.append(f"## {md(family)} \u2014 {md(say.fork_words(direction))} "
-                   f"{{ #{family_anchor(family, direction)} }}")
-        out.append(table(["Result", "Master", "Slave", "Pedal ratio", "Pedal effort",
-                          "Margin", "Builds"],
-                         [_reference_row(data, combo) for combo in combos]))
+        # the section's id sits on a wrapper, never in the heading beside record text
+        out.append(f'<div id="{family_anchor(family, direction)}" markdown>\n\n'
+                   f"## {md(family)} \u2014 {md(say.fork_words(direction))}\n\n"
+                   + table(["Result", "Master", "Slave", "Pedal ratio", "Pedal effort",
+                            "Margin", "Builds"], [_reference_row(data, combo) for combo in combos])
+                   + "\n\n</div>")
     return "\n\n".join(out) + "\n"
 
 
