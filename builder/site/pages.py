@@ -380,8 +380,8 @@ def _reference_row(data: SiteData, combo: Combination) -> list[str]:
         result += f", {len(flagged)} flagged \u26a0"
     for build in rejected:  # why it failed: the tool's flags, then what the car did
         why = [say.flag_words(f.code) for f in _flagged(data, build)]
-        result += f"<br>{md(build.id)}: " + free("; ".join(why + ([build.outcome] if build.outcome
-                                                                   else [])) or "no reason recorded")
+        said = "; ".join(why + ([build.outcome] if build.outcome else [])) or "no reason recorded"
+        result += "<br>" + free(f"{build.id}: {said}")
     if combo.slave_bore is not None:
         slave = show.q(combo.slave_bore, "length")
     else:
