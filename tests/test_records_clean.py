@@ -215,12 +215,14 @@ def test_equal_or_longer_pad_arm_is_fine(shop):
 # --- shop rules: publish ---------------------------------------------------------------------
 
 def test_publish_rule_defaults_and_choices(shop):
-    assert load_rules(shop).publish == ("measured", "verified", "rejected")
-    with (shop / "shop.yaml").open("a") as rules:
-        rules.write("publish: [verified]\n")
+    rules_file = shop / "shop.yaml"
+    without = "".join(line for line in rules_file.read_text().splitlines(keepends=True)
+                      if not line.startswith("publish:"))
+    rules_file.write_text(without)
+    assert load_rules(shop).publish == ("measured", "verified", "rejected")  # the default
+    rules_file.write_text(without + "publish: [verified]\n")
     assert load_rules(shop).publish == ("verified",)
-    text = (shop / "shop.yaml").read_text().replace("publish: [verified]", "publish: [verified, draft]")
-    (shop / "shop.yaml").write_text(text)
+    rules_file.write_text(without + "publish: [verified, draft]\n")
     with pytest.raises(InputError) as error:
         load_rules(shop)
     (problem,) = error.value.problems
