@@ -8,7 +8,6 @@ used the same master and slave, else "ready". When not ready, the best three sug
 """
 from __future__ import annotations
 
-import difflib
 import re
 from dataclasses import dataclass
 from pathlib import Path
@@ -16,7 +15,7 @@ from typing import TYPE_CHECKING
 
 from builder import presentation as say
 from builder.model import BUILD_ID_PATTERN
-from builder.problems import InputError, Problem
+from builder.problems import InputError, Problem, nearest
 
 if TYPE_CHECKING:
     from builder.engine import Sizing
@@ -68,7 +67,7 @@ def resolve(analysis: Analysis, path: Path) -> Build:
             build = analysis.builds.get(name)
             if build is not None:
                 return build
-            close = difflib.get_close_matches(name, list(analysis.builds), n=3, cutoff=0.6)
+            close = nearest(name, analysis.builds, cutoff=0.6)
             hint = f"; nearest: {', '.join(close)}" if close else ""
             raise InputError([Problem(name, 0, 0, "id", f"no build {name} in the records and "
                                       f"no such file{hint}")])

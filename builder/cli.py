@@ -11,7 +11,8 @@ from pathlib import Path
 
 import click
 
-from builder.problems import InputError, Problem, terminal_safe
+from builder.model import FORK_TIP_MOVES, STATUSES
+from builder.problems import InputError, Problem, nearest, terminal_safe
 
 CAUTION = (
     "Caution: clutch hydraulics run at several hundred psi; brake fluid is toxic, strips "
@@ -75,7 +76,22 @@ def progress_reporter(label: str):
     return report
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"]},
+class WholeLines(click.Group):
+    """A command group whose help lists each command's whole first sentence, wrapped to the
+    terminal, instead of cutting it at the column width with '...'."""
+
+    def format_commands(self, ctx: click.Context, formatter: click.HelpFormatter) -> None:
+        rows = []
+        for name in self.list_commands(ctx):
+            command = self.get_command(ctx, name)
+            if command is not None and not command.hidden:
+                rows.append((name, command.get_short_help_str(limit=1_000)))
+        if rows:
+            with formatter.section("Commands"):
+                formatter.write_dl(rows)
+
+
+@click.group(cls=WholeLines, context_settings={"help_option_names": ["-h", "--help"]},
              epilog="Exit status: 0 success, 1 invalid input, 2 usage error, 3 when `check` "
                     "finds a fail-severity flag (sized, not ready to order).")
 @click.option(
@@ -189,15 +205,38 @@ def suggest(ctx: Context, file: Path, top: int, as_json: bool, sizes: str) -> No
 
 @main.command()
 @click.option("--format", "fmt", type=click.Choice(["table", "csv", "json"]), default="table",
-              show_default=True)
+              show_default=True, help="table: display units, words; csv and json: SI-derived units.")
+@click.option("--family", help="Only builds of this gearbox family, e.g. QX-5.")
+@click.option("--fork", type=click.Choice(FORK_TIP_MOVES),
+              help="Only builds whose fork tip moves this way (none: concentric slave).")
+@click.option("--status", type=click.Choice(STATUSES), help="Only builds with this status.")
 @click.pass_obj
-def report(ctx: Context, fmt: str) -> None:
+def report(ctx: Context, fmt: str, family: str | None, fork: str | None, status: str | None) -> None:
     """One row per build: ratios, computed and measured effort, margin, flags."""
     from builder import report as reporting
 
     analysis = _run(ctx.analysis)
-    rows = reporting.report_rows(analysis)
-    echo_safe(reporting.render(rows, fmt, reporting.REPORT_TABLE_COLUMNS), nl=False)
+    if family is not None:
+        _known_family(analysis, family)
+    filters = reporting.Filters(family, fork, status)
+    if fmt == "table":
+        text = reporting.report_table(analysis, analysis.shop.rules.display_units, filters)
+    else:
+        text = reporting.render(reporting.report_rows(analysis, filters), fmt)
+    echo_safe(text, nl=False)
+
+
+def _known_family(analysis, family: str) -> None:
+    """A usage error (exit 2) for a --family the shop has never heard of, naming the nearest."""
+
+    shop = analysis.shop
+    known = ({b.gearbox.family for b in shop.builds} | set(shop.rules.families)
+             | {p.section.family for p in shop.parts.get("gearboxes", {}).values()})
+    if family not in known:
+        close = nearest(family.upper(), sorted(known))
+        hint = f"nearest: {', '.join(close)}" if close else f"known: {', '.join(sorted(known))}"
+        raise click.BadParameter(f"no gearbox family {family!r} in this shop; {hint}",
+                                 param_hint="--family")
 
 
 @main.command()
@@ -207,7 +246,7 @@ def calibration(ctx: Context) -> None:
     from builder import report as reporting
 
     analysis = _run(ctx.analysis)
-    echo_safe(reporting.render(reporting.calibration_rows(analysis), "table"), nl=False)
+    echo_safe(reporting.calibration_table(analysis), nl=False)
 
 
 @main.command()
@@ -218,8 +257,16 @@ def new(ctx: Context, build_id: str, like_id: str | None) -> None:
     """Write a new draft record BUILD_ID (never overwrites an existing file)."""
     from builder import drafts
 
-    path = _run(lambda: drafts.create(ctx.records, build_id, like_id))
-    click.echo(f"Wrote {path}")
+    def create():
+        try:
+            return drafts.create(ctx.records, build_id, like_id), []
+        except drafts.LeftToFill as left:
+            return left.path, left.problems
+
+    path, to_fill = _run(create)
+    click.echo(f"Wrote {path}" + ("; fill in before sizing it:" if to_fill else ""))
+    for problem in to_fill:
+        click.echo(terminal_safe(f"  {problem}"))
 
 
 @main.command("import")
@@ -261,7 +308,7 @@ def import_(ctx: Context, file: Path, map_file: Path, dry_run: bool) -> None:
         sys.exit(1)
 
 
-@main.group()
+@main.group(cls=WholeLines)
 def site() -> None:
     """Publish the fitment reference as a static site."""
 
@@ -269,14 +316,17 @@ def site() -> None:
 @site.command("build")
 @click.option("--out", type=click.Path(file_okay=False, path_type=Path), default=Path("site"),
               show_default=True, help="Where the finished site goes (replaced only on success).")
+@click.option("--include-drafts", is_flag=True,
+              help="Also publish draft builds: an internal copy, not for the public.")
 @click.pass_obj
-def site_build(ctx: Context, out: Path) -> None:
+def site_build(ctx: Context, out: Path, include_drafts: bool) -> None:
     """Build the site from the records; the previous site stays if anything fails."""
     from builder.site import build_site
 
     analysis = _run(ctx.analysis)
-    _run(lambda: build_site(analysis, out, progress=progress_reporter("writing pages")))
-    click.echo(f"Site written to {out}")
+    _run(lambda: build_site(analysis, out, progress=progress_reporter("writing pages"),
+                            include_drafts=include_drafts))
+    click.echo(f"Site written to {out}" + (" (internal copy: drafts included)" if include_drafts else ""))
 
 
 @site.command("serve")

@@ -10,7 +10,7 @@ import re
 from pathlib import Path
 
 from builder.model import BUILD_ID_PATTERN
-from builder.problems import InputError, Problem
+from builder.problems import PLACEHOLDER, InputError, Problem
 
 _TOP_KEY = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)\s*:")
 _DROPPED = {"measured", "outcome", "notes"}
@@ -51,6 +51,15 @@ pedal:
 """
 
 
+class LeftToFill(InputError):
+    """The draft was written and reads as a record, but placeholders are left in it: its
+    located problems, each saying what to fill in. `path` is the file written."""
+
+    def __init__(self, path: Path, problems: list[Problem]):
+        super().__init__(problems)
+        self.path = path
+
+
 def _modeline(new_file: Path, records: Path) -> str:
     schema = records.resolve().parent / "schema" / "build.schema.json"
     relative = os.path.relpath(schema, new_file.resolve().parent)
@@ -89,7 +98,9 @@ def copy_inputs(text: str, new_id: str, like_id: str, today: dt.date) -> str:
 
 def create(records: Path, build_id: str, like_id: str | None,
            today: dt.date | None = None) -> Path:
-    """Write records/builds/<year>/<build_id>.yaml exclusively and validate it."""
+    """Write records/builds/<year>/<build_id>.yaml exclusively and validate it.
+
+    LeftToFill when the only problems are the template's placeholders (the file is written)."""
     from builder.records import load_build_file, load_shop
 
     today = today or dt.date.today()
@@ -119,5 +130,10 @@ def create(records: Path, build_id: str, like_id: str | None,
     except FileExistsError:
         raise InputError([Problem(str(target), 0, 0, "id",
                                   "file already exists; nothing was written")]) from None
-    load_build_file(target, shop)
+    try:
+        load_build_file(target, shop)
+    except InputError as error:
+        if all(problem.code == PLACEHOLDER for problem in error.problems):
+            raise LeftToFill(target, error.problems) from None
+        raise
     return target

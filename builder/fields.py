@@ -28,6 +28,7 @@ QUANTITY, TEXT, NAME, CHOICE, CURVE, LAYOUT, POINT, DATE, BUILD_ID, PART_ID, GRO
 QUANTITIES, POINTS = "quantities", "points"  # a short list of quantities, or of points
 MEASURED_KINDS = (QUANTITY, POINT, QUANTITIES, POINTS)  # kinds holding quantities of a dimension
 MAX_ALTERNATIVES = 8  # most items in a QUANTITIES or POINTS list (each is sized by `suggest`)
+NAMES, CHOICES = "names", "choices"  # a list of codes; a list of some of the field's choices
 
 PART_ID_PATTERN = "^[A-Z0-9]+(-[A-Z0-9]+)*$"
 _QUANTITY_PATTERN = r"^\s*[0-9.][0-9./ eE+-]*[^\s0-9./+-]"
@@ -238,7 +239,7 @@ SECTION = {section.name: section for section in SECTIONS}
 PART_KINDS = {section.catalogue: section.name for section in SECTIONS if section.catalogue}
 
 PART_FIELDS = (
-    Field("id", PART_ID, "part id", "Catalogue part id, e.g. MC-750 (capitals, digits, "
+    Field("id", PART_ID, "part id", "Catalogue part id, e.g. MC-A3 (capitals, digits, "
           "hyphens).", required=True),
     _text("label", "label", "Short description shown with the id."),
 )
@@ -275,6 +276,13 @@ SHOP_FIELDS = (
        default="3.2 mm"),
     _q("shop.max_pushrod_angle", "largest pushrod angle", "Flag the pushrod past this angle to "
        "the bore axis.", "angle", "0.5 deg", "45 deg", default="5 deg"),
+    Field("shop.families", NAMES, "gearbox families", "Gearbox family codes the shop knows "
+          "besides those its catalogue's gearboxes use, e.g. [QX-5, VK-4]; a build's family must "
+          "be one of these or a catalogue gearbox's."),
+    Field("shop.publish", CHOICES, "published statuses", "Statuses of the builds the published "
+          "site shows. Default: measured, verified, rejected. Drafts are shown only by "
+          "`fitment site build --include-drafts` (an internal copy).",
+          choices=model.PUBLISHABLE, default=", ".join(model.PUBLISHABLE)),
 )
 
 
@@ -347,6 +355,11 @@ def field_schema(field: Field) -> dict:
         node = {"type": "string", "minLength": 1}
     elif kind == CHOICE:
         node = {"enum": list(field.choices)}
+    elif kind == NAMES:
+        node = {"type": "array", "uniqueItems": True,
+                "items": {"type": list(_TEXT_TYPE), "minLength": 1}}
+    elif kind == CHOICES:
+        node = {"type": "array", "uniqueItems": True, "items": {"enum": list(field.choices)}}
     elif kind == DATE:
         node = {"type": "string", "pattern": "^[0-9]{4}-[0-9]{2}-[0-9]{2}$"}
     elif kind == BUILD_ID:

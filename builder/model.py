@@ -14,6 +14,7 @@ Point = tuple[float, float]
 
 BUILD_ID_PATTERN = r"^[A-Z]{2,6}-[0-9]{3,6}$"  # also the file name stem
 STATUSES = ("draft", "measured", "verified", "rejected")
+PUBLISHABLE = ("measured", "verified", "rejected")  # a draft is published only on request
 FORK_TIP_MOVES = ("forward", "rearward", "none")
 SLAVE_KINDS = ("external", "concentric")
 HOSE_KINDS = ("rubber", "braided_ptfe", "steel")
@@ -174,6 +175,8 @@ class ShopRules:
     line_bore: float  # m, inner diameter of the line, for the fluid volume
     max_pushrod_angle: float  # rad, flag the pushrod past this angle to the bore axis
     target_effort: float | None = None  # N; None: the middle of the effort band
+    families: tuple[str, ...] = ()  # gearbox family codes known besides the catalogue's
+    publish: tuple[str, ...] = PUBLISHABLE  # statuses the published site shows
 
 
 @dataclass(frozen=True, slots=True)

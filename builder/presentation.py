@@ -26,7 +26,7 @@ from builder.units import DIMENSIONS, SEEDED_UNITS
 
 if TYPE_CHECKING:
     from builder.engine.result import Flag
-    from builder.history.calibration import Basis, Prediction
+    from builder.history.calibration import Basis, GroupCalibration, Prediction
     from builder.history.similar import Difference
     from builder.units import QuantityError
 
@@ -124,6 +124,43 @@ def in_unit(value: float | None, unit: str, digits: int) -> float | None:
     return round(value / scale, digits)
 
 
+def unit_label(dimension: str, system: str) -> str:
+    """The unit a figure of `dimension` is shown in: unit_label("length", "metric") -> "mm";
+    "%" for a fraction and "" for a plain ratio."""
+    if dimension == "ratio":
+        return ""
+    return DISPLAY[dimension][system][0]
+
+
+def number_in(value_si: float | None, dimension: str, system: str, signed: bool = False) -> str:
+    """A figure as a bare number in unit_label(dimension, system), for a column whose heading
+    names the unit: number_in(0.022225, "length", "imperial") -> "0.875"; a ratio with two
+    decimals, a fraction as a percentage with one; None is a dash.
+
+    >>> number_in(0.022225, "length", "metric"), number_in(5.6, "ratio", "metric")
+    ('22.2', '5.60')
+    >>> number_in(0.082, "fraction", "imperial", signed=True), number_in(None, "force", "metric")
+    ('+8.2', '—')
+    """
+    if value_si is None or not math.isfinite(value_si):
+        return NONE
+    if dimension == "ratio":
+        return f"{value_si:.2f}"
+    if dimension == "fraction":
+        return f"{value_si * 100:+.1f}" if signed else f"{value_si * 100:.1f}"
+    label, most_decimals = DISPLAY[dimension][system]
+    return number(value_si / SEEDED_UNITS[label][0], most_decimals)
+
+
+def spread(median: float | None, mad: float | None, as_percent: bool = True) -> str:
+    """A median with its median absolute deviation: "85.0 % ± 1.8 %" or "0.94 ± 0.01"."""
+    if median is None:
+        return NONE
+    if as_percent:
+        return f"{percent(median)} ± {percent(mad or 0.0)}"
+    return f"{factor(median)} ± {factor(mad or 0.0)}"
+
+
 def chart_unit(dimension: str, system: str) -> tuple[str, float]:
     """(unit label, SI value of one unit) for a chart axis of `dimension`."""
     label = CHART_UNITS[system][dimension]
@@ -131,6 +168,37 @@ def chart_unit(dimension: str, system: str) -> tuple[str, float]:
 
 
 # --- words for fields -----------------------------------------------------------------------
+
+# part kind (a catalogue file) -> (one, several)
+PART_KIND_WORDS = {
+    "gearboxes": ("Gearbox", "Gearboxes"), "clutches": ("Clutch", "Clutches"),
+    "masters": ("Master cylinder", "Master cylinders"), "slaves": ("Slave cylinder", "Slave cylinders"),
+    "pedals": ("Pedal assembly", "Pedal assemblies"),
+}
+# record choices as people read them (the record keeps its own spelling)
+CHOICE_WORDS = {
+    "line.hose": {"rubber": "rubber", "braided_ptfe": "braided PTFE", "steel": "steel"},
+    "gearbox.fork_tip_moves": {"forward": "forward", "rearward": "rearward",
+                               "none": "none (concentric slave)"},
+}
+FORK_WORDS = {"forward": "fork tip moves forward", "rearward": "fork tip moves rearward",
+              "none": "concentric slave (no fork)"}
+
+
+def part_kind(kind: str, several: bool = False) -> str:
+    """"Master cylinder" / "Master cylinders" for the catalogue file `kind`."""
+    one, many = PART_KIND_WORDS.get(kind, (kind, kind))
+    return many if several else one
+
+
+def choice(key: str, value: str) -> str:
+    """A record choice as words: choice("line.hose", "braided_ptfe") -> "braided PTFE"."""
+    return CHOICE_WORDS.get(key, {}).get(value, value)
+
+
+def fork_words(direction: str) -> str:
+    return FORK_WORDS.get(direction, direction)
+
 
 def noun(dimension: str) -> str:
     """'length' -> 'a length', 'angle' -> 'an angle', 'hose_expansion' -> 'a hose expansion'."""
@@ -172,6 +240,15 @@ def quantity_message(error: QuantityError) -> str:
         "out-of-range": lambda: f"{found} is outside the plausible range "
                                 f"{quantity(e.low, e.dimension)} to {quantity(e.high, e.dimension)} "
                                 "for this field",
+        "comma": lambda: f"expected {want}; found {found!r} with a comma in the number, "
+                         f"probably meant {_either(e.meant)} (a decimal point, no thousands "
+                         "separator)",
+        "inch-mark": lambda: f"expected {want}; found {found!r} with the inch mark {e.unit}, "
+                             f"probably meant {_either(e.meant)}",
+        "foot-mark": lambda: f"expected {want}; found {found!r} with the foot mark {e.unit}, "
+                             f"probably meant {_either(e.meant)}",
+        "mass-for-force": lambda: f"expected {want}; found {found!r}, a mass ({e.unit}) where a "
+                                  f"force belongs, probably meant {_either(e.meant)}",
     }
     text = sentences[e.reason]()
     if e.hint:
@@ -179,9 +256,43 @@ def quantity_message(error: QuantityError) -> str:
     return text
 
 
+def _either(texts: Iterable[str]) -> str:
+    return " or ".join(texts)
+
+
+def encoding_message(encoding: str) -> str:
+    """A record file saved in a wide encoding (UTF-16 or UTF-32) instead of UTF-8."""
+    return (f"the file is {encoding} text, not UTF-8; save it again as UTF-8 (in most editors: "
+            "save with encoding, UTF-8)")
+
+
 def accepted_range(dimension: str, low: float, high: float) -> str:
     """"; this field accepts 0.118 in (3 mm) to 2.362 in (60 mm)"."""
     return f"; this field accepts {quantity(low, dimension)} to {quantity(high, dimension)}"
+
+
+# --- records ------------------------------------------------------------------------------
+
+def placeholder_message(label: str, found: str) -> str:
+    """A template value left in a record: "fill in the vehicle: 'XX' is a placeholder"."""
+    return f"fill in the {label}: {found!r} is a placeholder left for you to replace"
+
+
+def swapped_lengths_message(pad: float, clevis: float, layout: bool = False) -> str:
+    """Pivot-to-pad shorter than pivot-to-clevis (m): a pedal ratio below 1."""
+    where = "in this layout the pad is" if layout else "pivot to pad is"
+    return (f"{where} {quantity(pad, 'length')} from the pivot, shorter than the clevis at "
+            f"{quantity(clevis, 'length')}: a pedal ratio of {ratio(pad / clevis)} (a pedal "
+            "multiplies the driver's force, so the pad sits further out); the two lengths "
+            "look swapped")
+
+
+def unknown_family_message(code: str, nearest: Iterable[str], known: int) -> str:
+    """A gearbox family neither a catalogue gearbox nor the shop's `families` rule names."""
+    close = list(nearest)
+    hint = f"nearest: {', '.join(close)}" if close else f"the shop knows {known} families"
+    return (f"unknown gearbox family {code!r}; {hint}. A family is one a catalogue gearbox "
+            "uses (parts/gearboxes.yaml) or one listed under `families` in shop.yaml")
 
 
 # --- pedal geometry -------------------------------------------------------------------------
@@ -255,6 +366,20 @@ def _signed(flag: Flag, name: str) -> str:
     return percent(flag.value(name), signed=True)
 
 
+FLAG_WORDS = {
+    "travel-short": "travel short", "master-volume-short": "master volume short",
+    "slave-overtravel": "slave over-travel", "master-bottoms-early": "master bottoms early",
+    "release-late": "release late", "effort-high": "pedal heavy", "effort-low": "pedal light",
+    "pressure-over-rating": "pressure over rating", "pushrod-off-axis": "pushrod off axis",
+    "linkage-over-centre": "linkage over centre", "pad-travel-mismatch": "pad travel mismatch",
+}
+
+
+def flag_words(code: str) -> str:
+    """A flag in two or three words, for a table cell: "travel short"."""
+    return FLAG_WORDS.get(code, code.replace("-", " "))
+
+
 def flag_line(flag: Flag, primary: str = "imperial") -> str:
     """"FAIL  travel-short: <sentence>" for a terminal."""
     return f"{flag.severity.upper():<5} {flag.code}: {flag_sentence(flag, primary)}"
@@ -289,6 +414,23 @@ def prediction_note(prediction: Prediction) -> str | None:
     if prediction.interval is None:
         return "no interval yet: too few leave-one-out residuals"
     return None
+
+
+# --- calibration ----------------------------------------------------------------------------
+
+CALIBRATION_HEADINGS = ("Group", "Builds", "Efficiency used", "Own median \u00b1 MAD", "Weight",
+                        "Typical error", "90 % of errors below", "Builds with travel",
+                        "Travel factor used", "Own median \u00b1 MAD")
+
+
+def calibration_cells(group: GroupCalibration) -> list[str]:
+    """One calibration group as the site and the terminal show it: efficiencies and errors
+    as percentages, the family weight and travel factors as factors."""
+    return [group.name, str(group.n), percent(group.efficiency),
+            spread(group.efficiency_median, group.efficiency_mad), factor(group.weight),
+            percent(group.loo_median_abs_err), percent(group.loo_p90_abs_err),
+            str(group.n_travel), factor(group.travel_factor),
+            spread(group.travel_factor_median, group.travel_factor_mad, as_percent=False)]
 
 
 # --- similar builds -------------------------------------------------------------------------
@@ -396,9 +538,9 @@ def _cylinder_value(value, dimension: str, catalogued: bool, primary: str) -> st
 def change_words(change, primary: str = "imperial") -> str:
     """What one change orders, and what it replaces.
 
-    "master MC-875: 0.875 in (22.2 mm) bore instead of 0.625 in (15.9 mm)";
-    "slave 13/16 in (20.6 mm) bore, not in catalogue, instead of SC-750";
-    "master MC-625: same 0.625 in (15.9 mm) bore, 1.4 in (35.6 mm) stroke instead of 1 in
+    "master MC-A6: 0.875 in (22.2 mm) bore instead of 0.625 in (15.9 mm)";
+    "slave 13/16 in (20.6 mm) bore, not in catalogue, instead of SC-B1";
+    "master MC-A1: same 0.625 in (15.9 mm) bore, 1.4 in (35.6 mm) stroke instead of 1 in
     (25.4 mm)"; "clevis hole 2.3 in (58.4 mm) from the pivot instead of 2 in (50.8 mm)".
     """
     if change.what == "clevis":

@@ -1,7 +1,9 @@
 """Located input problems: every bad input becomes one of these, never a traceback."""
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field as _field
+
+PLACEHOLDER = "placeholder"  # Problem.code of a template value left in a record
 
 
 @dataclass(frozen=True, slots=True)
@@ -9,7 +11,9 @@ class Problem:
     """One thing wrong with an input file, located for a person to fix.
 
     Printed as ``path:line:col: field: message``; line and col are 1-based,
-    0 when the position is unknown (for instance a missing file).
+    0 when the position is unknown (for instance a missing file). `code`, when set, says
+    what kind of problem it is for a caller that treats some kinds apart (PLACEHOLDER); it
+    is not part of the printed line and two problems differing only in it are equal.
     """
 
     path: str
@@ -17,6 +21,7 @@ class Problem:
     col: int
     field: str
     message: str
+    code: str | None = _field(default=None, compare=False)
 
     def __str__(self) -> str:
         return f"{self.path}:{self.line}:{self.col}: {self.field}: {self.message}"
@@ -39,3 +44,24 @@ def terminal_safe(text: str | None) -> str:
         else f"\\x{ord(ch):02x}"
         for ch in text
     )
+
+
+def nearest(word: str, choices, n: int = 3, cutoff: float = 0.5) -> list[str]:
+    """Up to `n` of `choices` that look like `word`, best first: for "did you mean" hints on
+    unknown ids, keys and codes. A choice that differs only by case or by a digit typed as a
+    look-alike letter (O for 0, l for 1, Z for 2...) comes first; then difflib's ratio of at
+    least `cutoff`."""
+    import difflib  # only when something is unknown
+
+    choices = list(choices)
+    folded = _fold(word)
+    alike = [choice for choice in choices if _fold(choice) == folded]
+    close = difflib.get_close_matches(word, choices, n=n, cutoff=cutoff)
+    return list(dict.fromkeys(alike + close))[:n]
+
+
+_LOOK_ALIKE = str.maketrans({"O": "0", "I": "1", "L": "1", "Z": "2", "S": "5", "G": "6", "B": "8"})
+
+
+def _fold(text: str) -> str:
+    return text.upper().translate(_LOOK_ALIKE)

@@ -80,15 +80,17 @@ class QuantityError(ValueError):
     Carries why (a reason code), the dimension expected and what was found, so callers and
     builder.presentation never read message text. Reasons: too-long, no-number, no-unit,
     divides-by-zero, improper-fraction, not-finite, negative, wrong-dimension, not-a-unit,
-    unknown-unit, unit-too-long, not-text, form, out-of-range.
+    unknown-unit, unit-too-long, not-text, form, out-of-range; and slips whose `meant` gives
+    the text probably meant, most likely first: comma (22,2 mm or 1,200 psi), inch-mark
+    (7/8"), foot-mark (2'), mass-for-force (410 lb).
     """
 
     def __init__(self, reason: str, dimension: str, found: str, *, unit: str | None = None,
                  found_dimension: str | None = None, low: float | None = None,
-                 high: float | None = None, hint: str | None = None):
+                 high: float | None = None, hint: str | None = None, meant: tuple[str, ...] = ()):
         self.reason, self.dimension, self.found = reason, dimension, found
         self.unit, self.found_dimension, self.low, self.high = unit, found_dimension, low, high
-        self.hint = hint
+        self.hint, self.meant = hint, meant
         super().__init__(reason, dimension, found)
 
     def __str__(self) -> str:
@@ -134,10 +136,44 @@ def _parse_text(text: str, dimension: str) -> float:
         if dimension == "fraction":
             return _finite(magnitude, text, dimension, True)
         raise QuantityError("no-unit", dimension, text)
-    factor, found = _resolve_unit(unit, text, dimension)
+    try:
+        factor, found = _resolve_unit(unit, text, dimension)
+    except QuantityError as error:
+        raise _slip(match, dimension) or error from None
     if found != dimension:
-        raise QuantityError("wrong-dimension", dimension, text, found_dimension=found)
+        raise _slip(match, dimension) or QuantityError("wrong-dimension", dimension, text,
+                                                       found_dimension=found)
     return _finite(magnitude * factor, text, dimension, True)
+
+
+_COMMA_RE = re.compile(r",(\d+(?:,\d{3})*)\s*(\S.*)")  # what follows "22" in "22,2 mm"
+_MARKS = {'"': ("inch-mark", "in"), "''": ("inch-mark", "in"), "\u2033": ("inch-mark", "in"),
+          "'": ("foot-mark", "ft"), "\u2032": ("foot-mark", "ft")}
+_MASS_FOR_FORCE = {"lb": "lbf", "lbs": "lbf", "pound": "lbf", "pounds": "lbf", "#": "lbf",
+                   "kg": "kgf", "kgs": "kgf"}
+
+
+def _slip(match: re.Match, dimension: str) -> QuantityError | None:
+    """A common typing slip in a refused quantity, with the text probably meant: a decimal or
+    thousands comma, an inch or foot mark, or a mass unit where a force belongs."""
+    text, unit = match.string, match["unit"]
+    number = text[:match.start("unit")].strip()
+    comma = _COMMA_RE.fullmatch(unit) if match["dec"] is not None else None
+    if comma and match["dec"].isdigit():
+        whole, digits, rest = match["dec"], comma[1], comma[2]
+        readings = []
+        if "," in digits or (len(digits) == 3 and not whole.startswith("0")):
+            readings.append(f"{whole}{digits.replace(',', '')} {rest}")  # thousands
+        if "," not in digits:
+            readings.append(f"{whole}.{digits} {rest}")  # a decimal comma
+        return QuantityError("comma", dimension, text, unit=rest, meant=tuple(readings))
+    if unit in _MARKS:
+        reason, written = _MARKS[unit]
+        return QuantityError(reason, dimension, text, unit=unit, meant=(f"{number} {written}",))
+    if dimension == "force" and unit in _MASS_FOR_FORCE:
+        return QuantityError("mass-for-force", dimension, text, unit=unit,
+                             meant=(f"{number} {_MASS_FOR_FORCE[unit]}",))
+    return None
 
 
 def _magnitude(match: re.Match, text: str, dimension: str) -> float:

@@ -65,12 +65,12 @@ def hostile_shop(base: Path) -> Path:
         text = _set(text, field, hostile(field))
     text = re.sub(r"^notes: \|\n(?:  .*\n?)*", "", text, flags=re.M)
     text += "notes: " + json.dumps(hostile("notes") + "\n\n" + "\n".join(PAYLOADS)) + "\n"
-    text = text.replace("master:\n", "master:\n  part: MC-750\n", 1)
+    text = text.replace("master:\n", "master:\n  part: MC-A3\n", 1)
     target = records / "builds" / "2099" / f"{HOSTILE_ID}.yaml"
     target.parent.mkdir()
     target.write_text(text)
     masters = records / "parts" / "masters.yaml"
-    masters.write_text(_label(masters.read_text(), "MC-750", hostile("label")))
+    masters.write_text(_label(masters.read_text(), "MC-A3", hostile("label")))
     return records
 
 
@@ -117,7 +117,7 @@ def test_build_page_shows_every_payload_as_text(page, served):
 
 
 def test_part_page_shows_the_label_as_text(page, served):
-    page.goto(f"{served}parts/masters/MC-750/")
+    page.goto(f"{served}parts/masters/MC-A3/")
     page.wait_for_load_state("networkidle")
     assert flat(hostile("label")) in flat(page.locator("article").inner_text())
     assert_inert(page)

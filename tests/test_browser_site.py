@@ -3,6 +3,7 @@ script from record text. Uses Debian's chromium (never a browser download)."""
 from __future__ import annotations
 
 import os
+import re
 from pathlib import Path
 
 import pytest
@@ -26,10 +27,10 @@ def served(tmp_path_factory):
 
 def test_search_finds_a_build_and_opens_its_page(page, served):
     page.goto(served)
-    results = search(page, "TS-103", expect_in_first="TS-103")
+    results = search(page, "TS-105", expect_in_first="TS-105")
     results.first.locator("a").first.click()
-    page.wait_for_url("**/builds/TS-103/**")
-    linkage = page.locator('img[src$="TS-103-linkage.svg"]')
+    page.wait_for_url("**/builds/TS-105/**")
+    linkage = page.locator('img[src$="TS-105-linkage.svg"]')
     linkage.scroll_into_view_if_needed()
     assert linkage.is_visible()
     assert page.evaluate("img => img.naturalWidth", linkage.element_handle()) > 0
@@ -77,4 +78,54 @@ def test_screenshots_of_home_and_a_build_page(page, served, tmp_path):
         target = Path(os.environ.get("FITMENT_SCREENSHOTS", tmp_path)) / f"{name}.png"
         page.screenshot(path=str(target), full_page=True)
         assert target.stat().st_size > 10_000
+    page.watch.assert_clean()
+
+
+def test_a_family_code_finds_its_reference_section_then_its_builds(page, served):
+    # The search tokenises QX-5 as "qx" and "5" (mkdocs-material's default separator); the
+    # reference page's and build pages' `search: boost:` put the family first.
+    page.goto(served)
+    results = search(page, "QX-5", expect_in_first="QX-5")
+    page.wait_for_timeout(500)
+    first = results.first
+    assert "/reference/" in first.locator("a").first.get_attribute("href")
+    assert "QX-5 \u2014 fork tip moves rearward" in first.inner_text()
+    following = [" ".join(item.inner_text().split()) for item in results.all()[1:4]]
+    assert following and all(re.match(r"TS-\d+ \u2014 QX-5", text) for text in following), following
+    page.watch.assert_clean()
+
+
+def test_reference_and_builds_tables_fit_a_1280_px_window(page, served):
+    assert page.viewport_size["width"] == 1280
+    for path in ("reference/", "builds/"):
+        page.goto(served + path)
+        page.wait_for_load_state("networkidle")
+        tables = page.evaluate("""() => {
+            const edge = Math.min(document.querySelector('article').getBoundingClientRect().right,
+                                  window.innerWidth);
+            return [...document.querySelectorAll('article table')].map(t => ({
+                past: [...t.querySelectorAll('th, td')].filter(c => c.getBoundingClientRect().right > edge + 1).length,
+                hidden: Math.max(0, t.scrollWidth - t.clientWidth),
+                columns: t.querySelectorAll('th').length}));
+        }""")
+        assert tables, path
+        for table in tables:
+            assert table == {"past": 0, "hidden": 0, "columns": table["columns"]}, (path, tables)
+    page.watch.assert_clean()
+
+
+def test_a_build_page_prints_as_a_bench_sheet_without_navigation(page, served, tmp_path):
+    page.goto(served + "builds/TS-101/")
+    page.wait_for_load_state("networkidle")
+    page.emulate_media(media="print")
+    target = Path(os.environ.get("FITMENT_SCREENSHOTS", tmp_path)) / "build-print.png"
+    page.screenshot(path=str(target), full_page=True)
+    assert target.stat().st_size > 10_000
+    for navigation in (".md-header", ".md-sidebar--primary", ".md-sidebar--secondary", ".md-search",
+                       ".md-footer", "#similar-builds"):
+        assert not page.locator(navigation).first.is_visible(), navigation
+    for shown in ("Computed against measured", "Inputs", "Cautions."):
+        assert page.locator("article").get_by_text(shown).first.is_visible(), shown
+    pdf = page.pdf(format="A4")  # chromium's own print: one or two sheets for the bench
+    assert 1 <= len(re.findall(rb"/Type\s*/Page[^s]", pdf)) <= 2
     page.watch.assert_clean()

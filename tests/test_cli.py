@@ -153,7 +153,59 @@ def test_report_json_and_table():
     data = json.loads(run("report", "--format", "json").output)
     assert len(data) == len(ALL_BUILDS)
     table = run("report").output.splitlines()
-    assert table[0].startswith("id") and len(table) == len(ALL_BUILDS) + 2
+    assert table[0].startswith("Build") and len(table) == len(ALL_BUILDS) + 2
+
+
+def _table(output: str) -> list[dict]:
+    """A report table read back: heading -> cell, split on the heading rule's columns."""
+    lines = output.splitlines()
+    spans, at = [], 0
+    for dashes in lines[1].split("  "):
+        spans.append((at, at + len(dashes)))
+        at += len(dashes) + 2
+    cells = [[line[a:b].strip() for a, b in spans] for line in lines]
+    return [dict(zip(cells[0], row)) for row in cells[2:]]
+
+
+def test_report_table_speaks_words_in_the_shops_display_units():
+    table = run("report")
+    assert table.exit_code == 0
+    heading = table.output.splitlines()[0]
+    assert "_" not in heading  # words, not CSV keys
+    assert "Master bore (in)" in heading and "Effort measured (lbf)" in heading
+    rows = {row["Build"]: row for row in _table(table.output)}
+    csv_rows = {r["id"]: r for r in csv.DictReader(io.StringIO(run("report", "--format", "csv").output))}
+    for build_id, row in csv_rows.items():
+        # CSV keeps SI-derived units; the table shows inches and lbf (NIST SP 811 B.8:
+        # 1 in = 25.4 mm, 1 lbf = 4.4482216152605 N)
+        assert float(rows[build_id]["Master bore (in)"]) == pytest.approx(
+            float(row["master_bore_mm"]) / 25.4, abs=0.0006)
+        if row["measured_effort_N"]:
+            assert float(rows[build_id]["Effort measured (lbf)"]) == pytest.approx(
+                float(row["measured_effort_N"]) / 4.4482216152605, abs=0.06)
+    assert "pushrod off axis" in table.output and "pushrod-off-axis" not in table.output
+
+
+def test_report_table_follows_a_metric_shop(shop_copy: Path):
+    rules = shop_copy / "shop.yaml"
+    rules.write_text(rules.read_text().replace("display_units: imperial", "display_units: metric"))
+    heading = run("report", records=shop_copy).output.splitlines()[0]
+    assert "Master bore (mm)" in heading and "Effort computed (N)" in heading
+
+
+def test_report_filters_by_family_fork_and_status():
+    every = list(csv.DictReader(io.StringIO(run("report", "--format", "csv").output)))
+    chosen = run("report", "--format", "csv", "--family", "QX-5", "--fork", "rearward",
+                 "--status", "verified")
+    rows = list(csv.DictReader(io.StringIO(chosen.output)))
+    assert rows and {(r["family"], r["fork_tip_moves"], r["status"]) for r in rows} == {
+        ("QX-5", "rearward", "verified")}
+    assert len(rows) == sum(r["family"] == "QX-5" and r["status"] == "verified" for r in every)
+    drafts = _table(run("report", "--status", "draft").output)
+    assert drafts and {row["Status"] for row in drafts} == {"draft"}
+    unknown = run("report", "--family", "QX5")
+    assert unknown.exit_code == 2 and "nearest: QX-5" in unknown.output
+    assert run("report", "--fork", "sideways").exit_code == 2
 
 
 def test_calibration_lists_every_family_and_shop_wide():
@@ -162,7 +214,24 @@ def test_calibration_lists_every_family_and_shop_wide():
     assert "shop-wide" in result.output
     for family in ("QX-5", "VK-4", "YC-6"):
         assert family in result.output
-    assert "loo_median_err_pct" in result.output
+    rows = {row["Group"]: row for row in _table(result.output)}
+    assert "Typical error" in result.output and "_pct" not in result.output
+    # as the calibration page shows them: efficiency in percent, weight and travel factor as
+    # factors near 1 (the demo's invented losses: 0.78 to 0.97, builder.demo)
+    shop = rows["shop-wide"]
+    assert shop["Efficiency used"].endswith(" %") and 70 < float(shop["Efficiency used"][:-2]) < 100
+    assert 0.8 < float(shop["Travel factor used"]) < 1.0 and float(shop["Weight"]) == 1.0
+
+
+def test_help_shows_each_commands_whole_line():
+    result = run("--help")
+    commands = result.output.split("Commands:")[1]
+    assert "..." not in commands
+    words = " ".join(result.output.split())
+    assert "Write a new draft record BUILD_ID (never overwrites an existing file)." in words
+    assert "Check the shop rules, parts catalogue and build records (or only PATHS)." in words
+    site = " ".join(run("site", "--help").output.split())
+    assert "the previous site stays if anything fails." in site
 
 
 def test_new_like_copies_inputs_then_refuses_a_second_time(shop_copy: Path):
@@ -182,9 +251,17 @@ def test_new_like_copies_inputs_then_refuses_a_second_time(shop_copy: Path):
     assert run("validate", records=shop_copy).exit_code == 0
 
 
-def test_new_template_validates_and_rejects_bad_ids(shop_copy: Path):
-    assert run("new", "HW-0998", records=shop_copy).exit_code == 0
-    assert run("validate", records=shop_copy).exit_code == 0
+def test_new_template_lists_what_to_fill_in_and_rejects_bad_ids(shop_copy: Path):
+    written = run("new", "HW-0998", records=shop_copy)
+    assert written.exit_code == 0, written.output
+    assert "fill in before sizing it" in written.output
+    path = next(shop_copy.glob("builds/*/HW-0998.yaml"))
+    left = run("validate", records=shop_copy)  # the template's placeholders are problems
+    assert left.exit_code == 1
+    fields = {line.split(": ")[1] for line in left.output.splitlines() if line.startswith(str(path))}
+    assert fields == {"technician", "vehicle", "gearbox.family"}
+    assert left.output.count("fill in the ") == 3
+    path.unlink()
     bad = run("new", "../evil", records=shop_copy)
     assert bad.exit_code == 1 and "expected an id like" in bad.output
     existing = run("new", ALL_BUILDS[0].stem, records=shop_copy)

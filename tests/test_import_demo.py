@@ -28,7 +28,7 @@ SHEET = RECORDS / "import" / demo_spreadsheet.SHEET_NAME
 MAP = RECORDS / "import" / demo_spreadsheet.MAP_NAME
 SLIPS = {9: (14, "master.bore", "unknown unit 'mn'"),
          19: (2, "date", "'31/09/2021' is not a calendar date"),
-         30: (13, "master.part", "unknown part 'MC-100O' in parts/masters.yaml; nearest: MC-1000")}
+         30: (13, "master.part", "unknown part 'MC-AZ' in parts/masters.yaml; nearest: MC-A2")}
 
 
 def run(records: Path, *args: str):
@@ -77,7 +77,7 @@ def test_the_sheet_is_messy_like_a_real_export():
     assert raw.startswith(b"\xef\xbb\xbf") and b"\r\n" in raw
     rows = list(csv.reader(io.StringIO(raw[3:].decode("utf-8"), newline="")))
     cells = [cell for row in rows for cell in row]
-    for typed in ("7/8", ".75", "22.2mm", '1 1/8"', "5½\"", "1,650 N", "DOT4", "braided PTFE", "no good"):
+    for typed in ('7/8"', ".75", "22.2mm", '11 1/4"', "5½\"", "1,650 N", "DOT4", "braided PTFE", "no good"):
         assert typed in cells, typed
     assert any(cell.endswith("#") for cell in cells)  # 35# style efforts
     assert any(row and not any(row) for row in rows)  # a blank row between years
@@ -150,7 +150,7 @@ def test_dry_run_writes_nothing_and_says_what_it_would_do(shop):
 def test_fixing_the_slips_imports_the_rest(shop, tmp_path):
     run(shop, "import", str(SHEET), "--map", str(MAP))
     fixed = SHEET.read_bytes().replace(b"19.05 mn", b"19.05 mm").replace(b"31/09/2021", b"30/09/2021")
-    fixed = fixed.replace(b"MC-100O", b"MC-1000")
+    fixed = fixed.replace(b"MC-AZ", b"MC-A2")
     sheet = tmp_path / "fixed.csv"
     sheet.write_bytes(fixed)
     result = run(shop, "import", str(sheet), "--map", str(MAP))

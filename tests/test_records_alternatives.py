@@ -15,6 +15,7 @@ from factories import si
 
 SHOP = """\
 site_title: Test shop (invented)
+families: [QX-5]
 display_units: imperial
 effort_band:
   low: 15 lbf
@@ -28,6 +29,8 @@ hose_expansion:
   steel: 0.005 mL/m/MPa
 fluid_bulk_modulus: 1.7 GPa
 """
+
+RULES = parse_rules(SHOP.format(target=""))
 
 BUILD = """\
 id: QA-0101
@@ -95,23 +98,23 @@ def layout(positions: str) -> str:
 
 def problems(text: str) -> list:
     with pytest.raises(InputError) as caught:
-        parse_build(text, {}, "proposal.yaml")
+        parse_build(text, {}, "proposal.yaml", rules=RULES)
     return caught.value.problems
 
 
 def test_clevis_positions_load_in_si():
-    build = parse_build(lever("[1.9 in, 2.3 in]"), {}, "proposal.yaml")
+    build = parse_build(lever("[1.9 in, 2.3 in]"), {}, "proposal.yaml", rules=RULES)
     assert build.pedal.clevis_positions == pytest.approx((si("1.9 in"), si("2.3 in")))
     assert build.pedal.clevis_positions[0] == pytest.approx(0.04826)  # 1.9 x 0.0254, NIST
 
 
 def test_no_clevis_positions_is_none():
     text = BUILD.format(pedal=LEVER.replace("  clevis_positions: {positions}\n", ""))
-    assert parse_build(text, {}, "proposal.yaml").pedal.clevis_positions is None
+    assert parse_build(text, {}, "proposal.yaml", rules=RULES).pedal.clevis_positions is None
 
 
 def test_layout_clevis_points_load_in_si():
-    build = parse_build(layout("[[-8 mm, -60 mm], [-0.3 in, -1.9 in]]"), {}, "p.yaml")
+    build = parse_build(layout("[[-8 mm, -60 mm], [-0.3 in, -1.9 in]]"), {}, "p.yaml", rules=RULES)
     points = build.pedal.layout.clevis_positions
     assert points[0] == pytest.approx((si("-8 mm"), si("-60 mm")))
     assert points[1] == pytest.approx((si("-0.3 in"), si("-1.9 in")))
@@ -120,10 +123,10 @@ def test_layout_clevis_points_load_in_si():
 def test_a_catalogue_pedal_brings_its_clevis_positions_and_a_build_may_override_them():
     catalogue = parse_catalogue(PEDALS)
     base = BUILD.format(pedal="  part: PD-11\n")
-    assert parse_build(base, catalogue, "p.yaml").pedal.clevis_positions == pytest.approx(
+    assert parse_build(base, catalogue, "p.yaml", rules=RULES).pedal.clevis_positions == pytest.approx(
         (si("1.9 in"),))
     changed = BUILD.format(pedal="  part: PD-11\n  clevis_positions: [2.3 in, 2.5 in]\n")
-    assert parse_build(changed, catalogue, "p.yaml").pedal.clevis_positions == pytest.approx(
+    assert parse_build(changed, catalogue, "p.yaml", rules=RULES).pedal.clevis_positions == pytest.approx(
         (si("2.3 in"), si("2.5 in")))
 
 
@@ -164,7 +167,7 @@ def test_target_effort_outside_the_band_is_located():
     with pytest.raises(InputError) as caught:
         parse_rules(SHOP.format(target="target_effort: 45 lbf\n"))
     [problem] = caught.value.problems
-    assert (problem.field, problem.line) == ("target_effort", 6)
+    assert (problem.field, problem.line) == ("target_effort", 7)
     assert "inside the effort band" in problem.message
 
 
@@ -172,7 +175,7 @@ def test_the_site_input_table_shows_the_alternatives_in_both_systems():
     rules = parse_rules(SHOP.format(target=""))
     build = parse_build(layout("[[-8 mm, -60 mm]]").replace(
         "  pad_travel: 150 mm\n", "  pad_travel: 150 mm\n  clevis_positions: [2 in]\n"),
-        {}, "p.yaml")
+        {}, "p.yaml", rules=rules)
     rows = dict((label, value) for label, value in section_rows(build.pedal, Display(rules), "pedal"))
     assert rows["other clevis positions"] == "2 in (50.8 mm)"
     assert rows["layout other clevis points (x, y)"] == (

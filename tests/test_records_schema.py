@@ -29,7 +29,7 @@ BUILD = {
     "clutch": {"release_load": "410 lbf", "release_travel": "0.32 in", "clearance": "0.06 in",
                "load_curve": [["0 in", "0 lbf"], ["0.25 in", "410 lbf"]]},
     "fork": {"pivot_to_slave": "5.6 in", "pivot_to_bearing": "2.8 in"},
-    "master": {"part": "MC-750", "stroke": "1.4 in"},
+    "master": {"part": "MC-A3", "stroke": "1.4 in"},
     "slave": {"kind": "external", "bore": "7/8 in", "stroke": "1.10 in", "bracket": "flange"},
     "line": {"length": "38 in", "hose": "steel", "fluid": "DOT 5.1"},
     "pedal": {"pad_travel": "6 in", "layout": {
@@ -156,7 +156,7 @@ def test_fast_path_refuses_what_the_reference_refuses_in_builds():
     curve = [("clutch", "load_curve", index, axis) for index in (0, 1) for axis in (0, 1)]
     documents = _mutations(BUILD) + _deep_mutations(BUILD, points + curve)
     documents += [{**BUILD, "slave": {**BUILD["slave"], "piston_area": "0.6 in^2"}},  # the schema's `not`
-                  {**BUILD, "slave": {"part": "SC-750", "bore": "0.75 in", "piston_area": "0.6 in^2"}}]
+                  {**BUILD, "slave": {"part": "SC-B1", "bore": "0.75 in", "piston_area": "0.6 in^2"}}]
     assert _check_verdicts("build", demo, convert) == len(demo)  # every demo build takes the fast path
     accepted = _check_verdicts("build", documents, convert)
     assert 0 < accepted < len(documents)

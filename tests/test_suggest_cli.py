@@ -113,6 +113,7 @@ parts:
 """,
     "shop.yaml": """\
 site_title: Small invented shop
+families: [ZZ-9]
 display_units: imperial
 effort_band:
   low: 15 lbf

@@ -173,3 +173,34 @@ def test_mixed_fractions_exact(whole, numerator, denominator, joiner):
     text = f"{whole}{joiner}{numerator}/{denominator} in" if whole else f"{numerator}/{denominator} in"
     expected = float(Fraction(whole) + Fraction(numerator, denominator)) * 0.0254
     assert parse_quantity(text, "length") == pytest.approx(expected, rel=1e-15, abs=1e-18)
+
+
+@pytest.mark.parametrize("value, dimension, reason, meant", [
+    # ISO 80000-1:2009 7.3.2: a comma may be a decimal sign; digits are never grouped by one
+    ("22,2 mm", "length", "comma", ("22.2 mm",)),
+    ("0,875 in", "length", "comma", ("0.875 in",)),
+    ("1,200 psi", "pressure", "comma", ("1200 psi", "1.200 psi")),
+    ("1,200,000 Pa", "pressure", "comma", ("1200000 Pa",)),
+    # the inch mark (double prime) and foot mark (prime); NIST SP 811 writes in and ft
+    ('7/8"', "length", "inch-mark", ("7/8 in",)),
+    ("1-1/8''", "length", "inch-mark", ("1-1/8 in",)),
+    ("2'", "length", "foot-mark", ("2 ft",)),
+    # NIST SP 811 8.1: lb is a unit of mass, lbf of force
+    ("410 lb", "force", "mass-for-force", ("410 lbf",)),
+    ("410 lbs", "force", "mass-for-force", ("410 lbf",)),
+])
+def test_slips_carry_what_was_probably_meant(value, dimension, reason, meant):
+    with pytest.raises(QuantityError) as caught:
+        parse_quantity(value, dimension)
+    assert (caught.value.reason, caught.value.meant) == (reason, meant)
+    for reading in meant:  # every reading offered reads as pint reads it (mixed fractions aside)
+        if "-" not in reading:
+            assert parse_quantity(reading, dimension) == pytest.approx(
+                UREG.Quantity(reading).to_base_units().magnitude, rel=1e-12)
+    assert UREG.Quantity(1, "lb").dimensionality == UREG.Quantity(1, "kg").dimensionality  # a mass
+
+
+def test_a_mass_where_a_length_belongs_is_a_plain_wrong_dimension():
+    with pytest.raises(QuantityError) as caught:
+        parse_quantity("410 lb", "length")
+    assert (caught.value.reason, caught.value.meant) == ("wrong-dimension", ())

@@ -88,6 +88,7 @@ SHOP = {
     "fluid_bulk_modulus": q("1.7 GPa"),
     "line_bore": q("3/16 in"),
     "max_pushrod_angle": q("5 deg"),
+    "publish": ["measured", "verified", "rejected"],
 }
 SHOP_COMMENTS = {
     "display_units": "imperial | metric; both are always shown",
@@ -98,6 +99,7 @@ SHOP_COMMENTS = {
     "hose_expansion": "volume growth per metre of hose per MPa (from memory)",
     "fluid_bulk_modulus": "glycol brake fluid, from memory",
     "line_bore": "inner diameter of the hard line",
+    "publish": "on the published site; drafts only with --include-drafts",
 }
 
 
@@ -117,6 +119,8 @@ def _entries(kind: str, rows) -> list[CatalogueEntry]:
     return [CatalogueEntry(kind, pid, label, fields) for pid, label, fields in rows]
 
 
+# Part ids are the shop's own catalogue numbers: a kind prefix and a running number, never
+# a figure of the part (a bore, an area) the way some makers' numbers are built.
 CATALOGUE = {
     "gearboxes": _entries("gearboxes", [
         ("GB-QX5-E", "QX-5 five-speed, early alloy case",
@@ -159,41 +163,41 @@ CATALOGUE = {
           "clearance": q("0.05 in")}),
     ]),
     "masters": _entries("masters", [
-        ("MC-625", "5/8 in bore, remote reservoir, flange mount",
+        ("MC-A1", "5/8 in bore, remote reservoir, flange mount",
          {"bore": q("5/8 in"), "stroke": q("1.40 in"), "rated_pressure": q("1200 psi")}),
-        ("MC-700", "0.70 in bore, integral reservoir",
+        ("MC-A2", "0.70 in bore, integral reservoir",
          {"bore": q("0.70 in"), "stroke": q("1.30 in"), "rated_pressure": q("1500 psi")}),
-        ("MC-750", "3/4 in bore, integral reservoir",
+        ("MC-A3", "3/4 in bore, integral reservoir",
          {"bore": q("3/4 in"), "stroke": q("1.40 in"), "rated_pressure": q("1200 psi")}),
-        ("MC-191", "19.05 mm bore, short body, push-in hose",
+        ("MC-A4", "19.05 mm bore, short body, push-in hose",
          {"bore": q("19.05 mm"), "stroke": q("32 mm"), "rated_pressure": q("8 MPa")}),
-        ("MC-206", "20.6 mm bore, side-port reservoir",
+        ("MC-A5", "20.6 mm bore, side-port reservoir",
          {"bore": q("20.6 mm"), "stroke": q("30 mm"), "rated_pressure": q("8 MPa")}),
-        ("MC-875", "7/8 in bore, remote reservoir",
+        ("MC-A6", "7/8 in bore, remote reservoir",
          {"bore": q("7/8 in"), "stroke": q("1.25 in"), "rated_pressure": q("1000 psi")}),
-        ("MC-1000", "1 in bore, heavy duty",
+        ("MC-A7", "1 in bore, heavy duty",
          {"bore": q("1 in"), "stroke": q("1.10 in"), "rated_pressure": q("1000 psi")}),
     ]),
     "slaves": _entries("slaves", [
-        ("SC-750", "3/4 in bore, pull-type rod end",
+        ("SC-B1", "3/4 in bore, pull-type rod end",
          {"kind": "external", "bore": q("3/4 in"), "stroke": q("1.10 in"),
           "rated_pressure": q("1000 psi")}),
-        ("SC-810", "13/16 in bore, adjustable rod",
+        ("SC-B2", "13/16 in bore, adjustable rod",
          {"kind": "external", "bore": q("13/16 in"), "stroke": q("1.20 in"),
           "rated_pressure": q("1200 psi")}),
-        ("SC-875", "7/8 in bore, adjustable rod",
+        ("SC-B3", "7/8 in bore, adjustable rod",
          {"kind": "external", "bore": q("7/8 in"), "stroke": q("1.20 in"),
           "rated_pressure": q("1200 psi")}),
-        ("SC-222", "22.2 mm bore, two-bolt flange",
+        ("SC-B4", "22.2 mm bore, two-bolt flange",
          {"kind": "external", "bore": q("22.2 mm"), "stroke": q("30 mm"),
           "rated_pressure": q("8 MPa")}),
-        ("SC-1000", "1 in bore, short body",
+        ("SC-B5", "1 in bore, short body",
          {"kind": "external", "bore": q("1 in"), "stroke": q("1.00 in"),
           "rated_pressure": q("900 psi")}),
-        ("CS-690", "concentric slave, 690 mm^2 annular piston",
+        ("CS-C1", "concentric slave, 690 mm^2 annular piston",
          {"kind": "concentric", "piston_area": q("690 mm^2"), "stroke": q("16 mm"),
           "rated_pressure": q("6 MPa")}),
-        ("CS-105", "concentric slave, 1.05 in^2 annular piston, bleed extension",
+        ("CS-C2", "concentric slave, 1.05 in^2 annular piston, bleed extension",
          {"kind": "concentric", "piston_area": q("1.05 in^2"), "stroke": q("0.75 in"),
           "rated_pressure": q("900 psi")}),
     ]),

@@ -267,6 +267,9 @@ def _schedule(rng: random.Random) -> list[_Row]:
     return jobs
 
 
+LOOK_ALIKE = {"0": "O", "1": "l", "2": "Z", "5": "S", "6": "G", "8": "B"}  # a digit typed as a letter
+
+
 def _slip(row: _Row, kind: str, catalogue: dict) -> None:
     """Put one of the sheet's three typing slips into a row (the import refuses each)."""
     if kind == "unit":
@@ -275,8 +278,9 @@ def _slip(row: _Row, kind: str, catalogue: dict) -> None:
         row.cells["Date"] = f"31/09/{row.date.year}"
     else:
         part_id = row.record.get("master", {}).get("part") or sorted(catalogue["masters"])[0]
-        digit = next((c for c in reversed(part_id) if c in "01"), None)
-        slipped = part_id[::-1].replace(digit, {"0": "O", "1": "l"}[digit], 1)[::-1] if digit else part_id + "X"
+        digit = next((c for c in reversed(part_id) if c in LOOK_ALIKE), None)
+        slipped = (part_id[::-1].replace(digit, LOOK_ALIKE[digit], 1)[::-1] if digit
+                   else part_id + "X")
         row.cells["MC"] = slipped
 
 

@@ -1,10 +1,11 @@
 """The fitment reference: finished builds grouped into combinations, by numbers.
 
 A combination is one gearbox family and fork direction with one master, one slave and one
-pedal. Parts from the catalogue are the same part by id; parts written inline are the same
-when their bores (or piston areas) agree within a tolerance, and a pedal within a pedal
-ratio tolerance, so `0.874 in` and `0.875 in` bores share a row. The figures per row are
-the median measured effort (numpy.median) and the least computed travel margin.
+pedal. Parts from the catalogue are the same part by id; parts written out in the record
+are the same when their bores (or piston areas) agree within a tolerance, and a pedal
+within a pedal ratio tolerance, so `0.874 in` and `0.875 in` bores share a row. The figures
+per row are the median measured effort (numpy.median) and the least computed travel margin.
+The published reference groups only the builds the shop publishes.
 """
 from __future__ import annotations
 

@@ -11,7 +11,6 @@ Every parser raises CellError with a message for the person fixing the sheet.
 from __future__ import annotations
 
 import datetime as _dt
-import difflib
 import functools
 import math
 import re
@@ -20,6 +19,7 @@ from builder.importing.fields import FieldSpec
 from builder.importing.problems import CellError
 from builder.model import BUILD_ID_PATTERN
 from builder.presentation import quantity as show
+from builder.problems import nearest
 from builder.units import DIMENSIONS, QuantityError, parse_quantity
 
 # How a unit is typed (case-folded) -> how a record spells it. Others go to builder.units as typed.
@@ -200,7 +200,7 @@ def choice(typed: str, spec: FieldSpec) -> str:
     for option in spec.choices:
         if _key(option) == wanted:
             return option
-    close = difflib.get_close_matches(typed, spec.choices, n=1, cutoff=0.5)
+    close = nearest(typed, spec.choices, n=1)
     hint = f"; did you mean {close[0]}?" if close else ""
     raise CellError(f"expected one of {', '.join(spec.choices)}; found {typed!r}{hint} "
                     "(or map the sheet's word with values: in the map)")
@@ -217,7 +217,7 @@ def part(typed: str, spec: FieldSpec, catalogue: dict) -> str:
                       if kind != spec.catalogue and any(p.upper() == wanted for p in parts)), None)
     if elsewhere:
         raise CellError(f"part {typed!r} is in parts/{elsewhere}.yaml, not parts/{spec.catalogue}.yaml")
-    close = difflib.get_close_matches(wanted, ids, n=3, cutoff=0.4)
+    close = nearest(wanted, ids, cutoff=0.4)
     hint = f"; nearest: {', '.join(close)}" if close else f"; the catalogue has {len(ids)} {spec.catalogue}"
     raise CellError(f"unknown part {typed!r} in parts/{spec.catalogue}.yaml{hint}")
 

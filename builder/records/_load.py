@@ -11,7 +11,8 @@ from pathlib import Path
 
 from builder import model
 from builder.fields import FIELDS
-from builder.problems import InputError, Problem
+from builder.presentation import unknown_family_message
+from builder.problems import InputError, Problem, nearest
 from builder.records import convert as f
 from builder.records._schema import dotted, is_valid_fast, schema_problems
 from builder.records._yaml import NeedsCare, careful_load, fast_load, read_text
@@ -84,7 +85,9 @@ def _convert_rules(data: dict, report: f.ProblemCollector) -> model.ShopRules | 
     if report.problems or None in band or None in hoses.values() or None in values.values():
         return None
     return model.ShopRules(site_title=str(data["site_title"]), display_units=data["display_units"],
-                           target_effort=target, **values)
+                           target_effort=target,
+                           families=tuple(f.text(code) for code in data.get("families") or ()),
+                           publish=tuple(data.get("publish", model.PUBLISHABLE)), **values)
 
 
 def parse_rules(text: str, shown: str = "shop.yaml") -> model.ShopRules:
@@ -113,10 +116,12 @@ def parse_catalogue(texts: dict[str, str]) -> dict[str, dict[str, model.Part]]:
 
 
 def parse_build(text: str, catalogue: dict[str, dict[str, model.Part]], shown: str,
-                stem: str | None = None) -> model.Build:
-    """One build from its text; `stem`, when given, is the file name its id must equal.
-    InputError with every problem."""
-    build, problems = _load_text(text, shown, "build", _build_converter(catalogue, stem))
+                stem: str | None = None, rules: model.ShopRules | None = None) -> model.Build:
+    """One build from its text; `stem`, when given, is the file name its id must equal. Its
+    gearbox family must be a catalogue gearbox's or, with `rules`, one of the shop's
+    `families`. InputError with every problem."""
+    families = _catalogue_families(catalogue) | frozenset(rules.families if rules else ())
+    build, problems = _load_text(text, shown, "build", _build_converter(catalogue, stem, families))
     if problems:
         raise InputError(problems)
     return build
@@ -158,7 +163,7 @@ def _parts_converter(path: Path, taken: dict[str, str]) -> Callable[[dict, f.Pro
             values = f.convert_fields(section, raw, report, where)
             resolved = f.make_section(section, values, report, where)
             if resolved is not None:
-                label = f.text(raw.get("label"))
+                label = f.checked_text(raw.get("label"), "label", report, where + ("label",))
                 parts.append(model.Part(kind=kind, id=part_id, label=label, section=resolved, path=str(path)))
         return parts
 
@@ -198,11 +203,9 @@ def _find_part(catalogue: dict, section: str, part_id: str, report: f.ProblemCol
     part = catalogue.get(kind, {}).get(part_id)
     if part is not None:
         return part
-    import difflib  # only when a part is unknown
-
     other = next((k for k, parts in catalogue.items() if part_id in parts), None)
     ids = list(catalogue.get(kind, {}))
-    close = difflib.get_close_matches(part_id, ids, n=3, cutoff=0.4)
+    close = nearest(part_id, ids, cutoff=0.4)
     if other:
         hint = f"; {part_id} is in {other}, not {kind}"
     elif close:
@@ -213,24 +216,54 @@ def _find_part(catalogue: dict, section: str, part_id: str, report: f.ProblemCol
     return None
 
 
-def _build_converter(catalogue: dict, stem: str | None) -> Callable[[dict, f.ProblemCollector], model.Build | None]:
-    """Converts one build; `stem` is the file name the id must equal (None outside builds/)."""
+def known_families(catalogue: dict, rules: model.ShopRules | None) -> frozenset[str] | None:
+    """Gearbox family codes a build may name: its catalogue gearboxes' and the shop's
+    `families` rule; None (no check) when the shop rules could not be read."""
+    return None if rules is None else _catalogue_families(catalogue) | frozenset(rules.families)
+
+
+def _catalogue_families(catalogue: dict) -> frozenset[str]:
+    return frozenset(part.section.family for part in catalogue.get("gearboxes", {}).values())
+
+
+def _nearest_families(code: str, families: frozenset[str]) -> list[str]:
+    """Known codes that differ from `code` by case, a hyphen or a space first, then look-alikes."""
+    def bare(text: str) -> str:
+        return "".join(ch for ch in text.upper() if ch.isalnum())
+
+    same = sorted(family for family in families if bare(family) == bare(code))
+    alike = nearest(code.upper(), sorted(families))
+    return list(dict.fromkeys(same + alike))[:3]
+
+
+def _check_family(gearbox: model.Gearbox | None, families: frozenset[str] | None,
+                  report: f.ProblemCollector) -> None:
+    if gearbox is None or families is None or gearbox.family in families:
+        return
+    report(("gearbox", "family"), unknown_family_message(
+        gearbox.family, _nearest_families(gearbox.family, families), len(families)))
+
+
+def _build_converter(catalogue: dict, stem: str | None, families: frozenset[str] | None = None
+                     ) -> Callable[[dict, f.ProblemCollector], model.Build | None]:
+    """Converts one build; `stem` is the file name the id must equal (None outside builds/);
+    `families` the gearbox family codes it may name (None: not checked)."""
 
     def convert(data: dict, report: f.ProblemCollector) -> model.Build | None:
+        free = {key: f.checked_text(data.get(key), key, report, (key,))
+                for key in ("technician", "vehicle", "outcome", "notes")}
         sections = {name: _section(data, name, catalogue, report) for name in f.SECTION_FIELDS}
         build_id = data.get("id")
         if stem is not None and isinstance(build_id, str) and build_id != stem:
             report(("id",), f"id {build_id!r} must equal the file name {stem!r}")
+        _check_family(sections["gearbox"], families, report)
         _check_combination(data, sections, report)
         when = f.date(data.get("date"), report, ("date",))
         needed = [name for name in f.SECTION_FIELDS if name not in ("fork", "measured")]
         if report.problems or any(sections[name] is None for name in needed):
             return None
-        return model.Build(
-            id=build_id, date=when, status=data["status"], technician=f.text(data.get("technician")),
-            vehicle=f.text(data.get("vehicle")), outcome=f.text(data.get("outcome")),
-            notes=f.text(data.get("notes")), path=report.path, **sections,
-        )
+        return model.Build(id=build_id, date=when, status=data["status"], path=report.path,
+                           **free, **sections)
 
     return convert
 
@@ -282,15 +315,17 @@ def _inside(path: Path, folder: Path) -> bool:
     return True
 
 
-def _load_build(path: Path, catalogue: dict, in_builds: bool) -> tuple[model.Build | None, list[Problem]]:
+def _load_build(path: Path, catalogue: dict, in_builds: bool, families: frozenset[str] | None
+                ) -> tuple[model.Build | None, list[Problem]]:
     """`in_builds`: the file sits under records/builds/, so its id must equal its name."""
-    return _load(path, "build", _build_converter(catalogue, path.stem if in_builds else None))
+    return _load(path, "build", _build_converter(catalogue, path.stem if in_builds else None, families))
 
 
 def load_build_file(path: str | os.PathLike, shop: model.Shop) -> model.Build:
     """One build or proposal (it may live outside records/); InputError with every problem."""
     path = Path(path)
-    build, problems = _load_build(path, shop.parts, _inside(path, Path(shop.root) / "builds"))
+    build, problems = _load_build(path, shop.parts, _inside(path, Path(shop.root) / "builds"),
+                                  known_families(shop.parts, shop.rules))
     if problems:
         raise InputError(problems)
     return build
@@ -332,13 +367,14 @@ def locate(path: str | os.PathLike, field: str) -> tuple[int, int]:
 
 
 def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress | None,
-            in_builds: set[Path] | None = None) -> tuple[list[model.Build], list[Problem]]:
+            in_builds: set[Path] | None = None, families: frozenset[str] | None = None
+            ) -> tuple[list[model.Build], list[Problem]]:
     """Load build files. `in_builds`: those of `paths` under records/builds/; None when
-    `paths` is the listing of records/builds/ itself."""
+    `paths` is the listing of records/builds/ itself. `families`: see known_families."""
     builds, problems, inside_builds = [], [], []
     for done, path in enumerate(paths, 1):
         inside = in_builds is None or path in in_builds
-        build, found = _load_build(path, catalogue, inside)
+        build, found = _load_build(path, catalogue, inside, families)
         problems += found
         if build is not None:
             builds.append(build)
@@ -354,7 +390,8 @@ def _whole(root: Path, progress: Progress | None) -> tuple[model.ShopRules | Non
     """Rules, catalogue, every build under root/builds/** and every problem in them."""
     rules, problems = _rules(root)
     catalogue, found = _catalogue(root)
-    builds, found_in_builds = _builds(root, catalogue, _yaml_files(root / "builds"), progress)
+    builds, found_in_builds = _builds(root, catalogue, _yaml_files(root / "builds"), progress,
+                                      families=known_families(catalogue, rules))
     return rules, catalogue, builds, problems + found + found_in_builds
 
 
@@ -416,5 +453,6 @@ def _given(root: Path, paths: list[Path], progress: Progress | None
     if found and (build_paths or in_parts):
         problems += found
     in_builds = {path for path in build_paths if real[path].is_relative_to(builds_dir)}
-    builds, found = _builds(root, catalogue, build_paths, progress, in_builds)
+    builds, found = _builds(root, catalogue, build_paths, progress, in_builds,
+                            known_families(catalogue, rules))
     return rules, builds, problems + found

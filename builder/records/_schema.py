@@ -9,6 +9,7 @@ from __future__ import annotations
 import functools
 import json
 
+from builder.problems import nearest
 from builder.resources import data_dir
 from builder.units import DIMENSIONS, QuantityError, parse_quantity
 
@@ -183,7 +184,5 @@ def _kind_of(value: object) -> str:
 
 
 def _nearest(word: str, choices: list[str]) -> str:
-    import difflib  # only for an unknown key
-
-    close = difflib.get_close_matches(word, choices, n=3, cutoff=0.5)
+    close = nearest(word, choices)
     return f"; did you mean {' or '.join(close)}?" if close else f"; allowed: {', '.join(choices)}"

@@ -14,6 +14,8 @@ from pathlib import Path
 
 import yaml
 
+from builder.presentation import encoding_message
+
 MAX_BYTES = 256 * 1024  # a record is a few kilobytes
 MAX_FLOW_DEPTH = 64  # [ and { nesting; libyaml recurses in C and can crash on deep input
 MAX_ALIASES = 64
@@ -122,6 +124,9 @@ def read_text(path: Path) -> tuple[str | None, tuple[int, int, str] | None]:
         return None, (0, 0, f"cannot read: {error.strerror or error}")
     if len(raw) > MAX_BYTES:
         return None, (0, 0, f"file is over {MAX_BYTES} bytes; records are limited to {MAX_BYTES} bytes")
+    wide = _wide_encoding(raw)
+    if wide:
+        return None, (1, 1, encoding_message(wide))
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as error:
@@ -133,6 +138,23 @@ def read_text(path: Path) -> tuple[str | None, tuple[int, int, str] | None]:
     if not text.strip():
         return None, (1, 1, "empty file")
     return text, None
+
+
+_WIDE_MARKS = ((b"\xff\xfe\x00\x00", "UTF-32"), (b"\x00\x00\xfe\xff", "UTF-32"),
+               (b"\xff\xfe", "UTF-16"), (b"\xfe\xff", "UTF-16"))
+
+
+def _wide_encoding(raw: bytes) -> str | None:
+    """"UTF-16" or "UTF-32" for a file saved in a wide encoding (by its byte order mark, or
+    by the zero bytes that ASCII text has between its letters in UTF-16), else None."""
+    for mark, name in _WIDE_MARKS:
+        if raw.startswith(mark):
+            return name
+    if b"\x00" in raw[:64]:
+        head = raw[:64]
+        if head[1::2].count(0) * 2 >= len(head) // 2 or head[0::2].count(0) * 2 >= len(head) // 2:
+            return "UTF-16"
+    return None
 
 
 def _nesting_problem(text: str) -> tuple[int, int, str] | None:

@@ -14,8 +14,9 @@ import re
 from builder import model
 from builder.fields import (CHOICE, CURVE, FIELDS, LAYOUT, MEASURED_KINDS, PART_KINDS, POINT,
                             POINTS, QUANTITIES, QUANTITY, SECTION, SECTIONS, TEXT)
-from builder.presentation import accepted_range, quantity_message
-from builder.problems import Problem
+from builder.presentation import (accepted_range, placeholder_message, quantity_message,
+                                  swapped_lengths_message)
+from builder.problems import PLACEHOLDER, Problem
 from builder.records._schema import dotted, quantity_patterns
 from builder.records._yaml import Located, NeedsCare
 from builder.units import QuantityError, check_range, parse_quantity
@@ -48,14 +49,15 @@ class ProblemCollector:
         self.problems: list[Problem] = []
         self.bad: list[tuple] = []
 
-    def __call__(self, where: tuple, message: str, *, at_key: bool = False, field: str | None = None) -> None:
+    def __call__(self, where: tuple, message: str, *, at_key: bool = False, field: str | None = None,
+                 code: str | None = None) -> None:
         if self.doc is None:
             raise NeedsCare
         field = field or dotted(where)
         if any(problem.field == field for problem in self.problems):
             return
         line, col = self.doc.where(where, at_key)
-        self.problems.append(Problem(self.path, line, col, field, message))
+        self.problems.append(Problem(self.path, line, col, field, message, code))
 
     def blocked(self, where: tuple) -> bool:
         """A schema problem sits at `where` or above it."""
@@ -106,6 +108,8 @@ def quantity(value: object, key: str, report: ProblemCollector, where: tuple) ->
         result = parse_quantity(value, dimension, signed=low < 0)
         check_range(result, low, high, dimension, value)
     except QuantityError as error:
+        if len(error.meant) > 1:
+            error = _plausible_readings(error, key)
         message = quantity_message(error)
         report(where, message if error.reason == "out-of-range" else message + accepted(key))
         return None
@@ -114,6 +118,22 @@ def quantity(value: object, key: str, report: ProblemCollector, where: tuple) ->
             _accepted.clear()
         _accepted[value, key] = result
     return result
+
+
+def _plausible_readings(error: QuantityError, key: str) -> QuantityError:
+    """The error with only the readings of a slip (1,125 in: 1.125 in or 1125 in) that fall in
+    the field's plausible range; all of them when none does."""
+    dimension, low, high = PLAUSIBLE[key]
+    plausible = []
+    for reading in error.meant:
+        try:
+            value = parse_quantity(reading, dimension, signed=low < 0)
+        except QuantityError:
+            continue
+        if low <= value <= high:
+            plausible.append(reading)
+    error.meant = tuple(plausible) or error.meant
+    return error
 
 
 def accepted(key: str | None) -> str:
@@ -150,6 +170,35 @@ def text(value: object) -> str | None:
     return None if value is None else str(value)
 
 
+# What a template leaves for a person to replace: XX, TODO, TBD, ?, ..., "describe the car
+# generically", "fill in ...", or the field's own name in capitals (family: FAMILY).
+_PLACEHOLDER = re.compile(r"x{2,}|todo|tbd|tba|fixme|\?+|\.{3}|\u2026|(?:describe|fill in)\b.{0,80}",
+                          re.IGNORECASE)
+
+
+def is_placeholder(value: object, key: str) -> bool:
+    """Whether text in field `key` (dotted) is a stand-in left for a person to replace.
+
+    >>> is_placeholder("FAMILY", "gearbox.family"), is_placeholder("XX", "technician")
+    (True, True)
+    >>> is_placeholder("QX-5", "gearbox.family"), is_placeholder("RL", "technician")
+    (False, False)
+    """
+    if type(value) is not str:
+        return False
+    stripped = value.strip()
+    return (stripped == key.rsplit(".", 1)[-1].upper()
+            or _PLACEHOLDER.fullmatch(stripped) is not None)
+
+
+def checked_text(value: object, key: str, report: ProblemCollector, where: tuple) -> str | None:
+    """Free text of field `key` (dotted); a placeholder left in it is reported ("fill in")."""
+    if type(value) is str and is_placeholder(value, key):
+        report(where, placeholder_message(FIELDS[key].label if key in FIELDS else key, value),
+               code=PLACEHOLDER)
+    return text(value)
+
+
 def date(value: object, report: ProblemCollector, where: tuple) -> _dt.date | None:
     """A YYYY-MM-DD string (or a date object from another YAML loader) as a date."""
     if value is None or (isinstance(value, _dt.date) and not isinstance(value, _dt.datetime)):
@@ -173,7 +222,7 @@ def convert_fields(section: str, raw: dict, report: ProblemCollector, where: tup
         if kind == QUANTITY:
             fields[key] = quantity(value, f"{section}.{key}", report, at)
         elif kind == TEXT:
-            fields[key] = text(value)
+            fields[key] = checked_text(value, f"{section}.{key}", report, at)
         elif kind == CHOICE:
             fields[key] = value
         elif kind == CURVE:
@@ -236,11 +285,23 @@ def make_section(name: str, fields: dict, report: ProblemCollector, where: tuple
     if missing or (None in fields.values()
                    and any(value is None for key, value in fields.items() if SECTION_FIELDS[name][key] != TEXT)):
         return None
+    if name == "pedal" and not _pedal_lengths_in_order(fields, report, where):
+        return None
     cls = SECTION_CLASS[name]
     values = {key: fields.get(key) for key in _CLASS_FIELDS[cls]}
     if "part" in values:
         values["part"] = part
     return cls(**values)
+
+
+def _pedal_lengths_in_order(fields: dict, report: ProblemCollector, where: tuple) -> bool:
+    """False after reporting a pivot-to-pad shorter than pivot-to-clevis (a pedal ratio below
+    1: the two lengths swapped, most likely). A layout, when given, is checked on its own."""
+    pad, clevis = fields.get("pivot_to_pad"), fields.get("pivot_to_clevis")
+    if fields.get("layout") is not None or pad is None or clevis is None or pad >= clevis:
+        return True
+    report(where + ("pivot_to_pad",), swapped_lengths_message(pad, clevis))
+    return False
 
 
 def _load_curve(raw: list, report: ProblemCollector, where: tuple) -> tuple | None:
@@ -296,4 +357,9 @@ def _layout(raw: dict, report: ProblemCollector, where: tuple) -> model.PedalLay
                     report(where + (name, i), f"this clevis point is within 1 mm of {other}; a "
                            "lever needs distinct points")
                     return None
+    pad = math.dist(values["pivot"], values["pad"])
+    clevis = math.dist(values["pivot"], values["clevis"])
+    if pad < clevis:
+        report(where + ("pad",), swapped_lengths_message(pad, clevis, layout=True))
+        return None
     return model.PedalLayout(rotation_to_stop=rotation, **values, **lists)

@@ -18,7 +18,7 @@ from typing import Any
 from builder.problems import InputError, Problem
 from builder.resources import data_dir
 from builder.site.escape import plain
-from builder.site.pages import generated_pages, method_appendix
+from builder.site.pages import generated_pages, method_appendix, published_statuses
 
 PACKAGED_SITE_SRC = data_dir("site_src")
 MARKER = ".fitment-site"  # written into every site we build; only such a folder is replaced
@@ -40,8 +40,9 @@ class SiteBuildError(InputError):
 
 
 def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.PathLike | None = None,
-               progress: Progress | None = None) -> None:
-    """Build the published site for `analysis` into `out_dir`.
+               progress: Progress | None = None, include_drafts: bool = False) -> None:
+    """Build the published site for `analysis` into `out_dir`: the builds whose status the
+    shop's `publish` rule lists, and drafts too with `include_drafts` (an internal copy).
 
     site_src: a folder whose files override the packaged defaults file by file; None uses
     the `site_src/` beside the shop's records folder when there is one. progress, when
@@ -51,13 +52,13 @@ def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.Pat
     out = Path(out_dir).resolve()
     check_replaceable(out)
     layers = source_layers(analysis, site_src)
-    steps = len(analysis.shop.builds) + 2
+    steps = len(published_builds(analysis, include_drafts)) + 2
     out.parent.mkdir(parents=True, exist_ok=True)
     with tempfile.TemporaryDirectory(prefix="fitment-docs-") as work_name:
         work = Path(work_name)
         docs = write_sources(layers, work)
         per_page = None if progress is None else (lambda done, _total: progress(done, steps))
-        write_generated(analysis, docs, per_page)
+        write_generated(analysis, docs, per_page, include_drafts)
         new = Path(tempfile.mkdtemp(prefix=f".{out.name}.new-", dir=out.parent))
         try:
             run_mkdocs(work / CONFIG, docs, new, analysis.shop.rules.site_title, layers[-1])
@@ -121,11 +122,18 @@ def write_sources(layers: list[Path], work: Path) -> Path:
     return docs
 
 
-def write_generated(analysis: Any, docs: Path, progress: Progress | None) -> None:
+def published_builds(analysis: Any, include_drafts: bool = False) -> list:
+    """The builds the site shows (see pages.published_statuses)."""
+    shown = published_statuses(analysis.shop.rules, include_drafts)
+    return [build for build in analysis.shop.builds if build.status in shown]
+
+
+def write_generated(analysis: Any, docs: Path, progress: Progress | None,
+                    include_drafts: bool = False) -> None:
     """Generated pages and pictures go over the sources; the method page gets the
     calibration and similarity sections from the history module."""
     made: set[Path] = set()
-    for relative, text in generated_pages(analysis, progress):
+    for relative, text in generated_pages(analysis, progress, include_drafts):
         target = docs / relative
         if target.parent not in made:
             target.parent.mkdir(parents=True, exist_ok=True)

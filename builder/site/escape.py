@@ -65,13 +65,15 @@ def xml(value: object) -> str:
     return html.escape(text, quote=True)
 
 
-def front_matter_title(value: object) -> str:
-    """A page's YAML front matter giving its title as escaped HTML text.
+def front_matter_title(value: object, meta: dict | None = None) -> str:
+    """A page's YAML front matter giving its title as escaped HTML text, and `meta` (our own
+    keys and values, never record text: e.g. {"search": {"boost": 3}, "hide": ["toc"]}).
 
     The theme prints page titles unescaped (and strips tags, which unescapes entities) in
     <title>; a title from front matter is printed as given, so it stays escaped.
     """
-    return f"---\ntitle: {json.dumps(xml(' '.join(str(value).split())))}\n---\n\n"
+    extra = "".join(f"{key}: {json.dumps(item)}\n" for key, item in (meta or {}).items())
+    return f"---\ntitle: {json.dumps(xml(' '.join(str(value).split())))}\n{extra}---\n\n"
 
 
 def plain(value: object) -> str:

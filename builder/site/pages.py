@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import dataclasses
 import datetime as _dt
+import functools
 import re
 from collections import defaultdict
 from collections.abc import Callable, Iterator, Sequence
@@ -30,13 +31,15 @@ STATUS_COLORS = {"verified": "#2e7d32", "measured": "#1565c0", "rejected": "#c62
                  "draft": "#757575"}
 STATUS_WORDS = {"verified": "verified", "measured": "measured, not yet verified",
                 "rejected": "rejected (failed)", "draft": "draft (not built)"}
-FORK_WORDS = {"forward": "fork tip moves forward", "rearward": "fork tip moves rearward",
-              "none": "concentric slave (no fork)"}
 # part kind -> (Build attribute, singular title)
-PART_KINDS = {"gearboxes": ("gearbox", "Gearbox"), "clutches": ("clutch", "Clutch"),
-              "masters": ("master", "Master cylinder"), "slaves": ("slave", "Slave cylinder"),
-              "pedals": ("pedal", "Pedal assembly")}
+PART_KINDS = {kind: (fields.PART_KINDS[kind], say.part_kind(kind))
+              for kind in ("gearboxes", "clutches", "masters", "slaves", "pedals")}
 LATEST = 10
+# Search: how much more a page weighs than an ordinary one (mkdocs-material's per-page
+# `search: boost:`). The reference's family sections first, then build pages (a build id or
+# a family code finds them before part pages, whose where-used tables are not indexed).
+REFERENCE_BOOST = 8
+BUILD_BOOST = 2
 NONE = say.NONE
 _SLUG_BAD = re.compile(r"[^A-Za-z0-9._-]+")
 
@@ -82,6 +85,13 @@ class Display:
         return say.chart_unit("length", self.primary)
 
 
+def free(value: object) -> str:
+    """Record text for a table cell (escaped), allowed to break inside a long word so a
+    narrow column never pushes the table past the window's edge."""
+    text = md(value)
+    return f'<span class="fitment-free">{text}</span>' if text else ""
+
+
 def pct(fraction: float | None, signed: bool = False) -> str:
     return md(say.percent(fraction, signed))
 
@@ -90,9 +100,29 @@ def ratio(value: float | None) -> str:
     return md(say.ratio(value))
 
 
-def heading(title: str) -> str:
-    """Front matter and H1 of a generated page; title is record text."""
-    return f"{front_matter_title(title)}# {md(title)}"
+def heading(title: str, boost: float | None = None, hide: Sequence[str] = ()) -> str:
+    """Front matter and H1 of a generated page; title is record text. `boost` weighs the
+    page in the site search; `hide` lists theme parts left off the page ("toc")."""
+    meta: dict = {}
+    if boost is not None:
+        meta["search"] = {"boost": boost}
+    if hide:
+        meta["hide"] = list(hide)
+    return f"{front_matter_title(title, meta)}# {md(title)}"
+
+
+def unindexed(block: str, css_class: str | None = None, indexed: bool = False) -> str:
+    """Markdown kept out of the site's search index (mkdocs-material's data-search-exclude),
+    unless `indexed`; `css_class` marks it for the stylesheet (e.g. fitment-no-print). A
+    heading inside an unindexed block needs unindexed_heading too, or search lists it
+    under the page's title with no text."""
+    attributes = ("" if indexed else " data-search-exclude") + (f' class="{css_class}"' if css_class else "")
+    return f"<div{attributes} markdown>\n\n{block}\n\n</div>"
+
+
+def unindexed_heading(level: int, words: str) -> str:
+    """A heading whose whole section stays out of the search index."""
+    return f"{'#' * level} {words} {{ data-search-exclude }}"
 
 
 def table(header: Sequence[str], rows: Sequence[Sequence[str]]) -> str:
@@ -143,6 +173,8 @@ def section_rows(section: object, show: Display, name: str) -> list[list[str]]:
             pairs = "; ".join(f"{show.q(t, travel.dimension)} at {show.q(f_, load.dimension)}"
                               for t, f_ in value)
             rows.append([label, pairs])
+        elif field.kind == fields.CHOICE:
+            rows.append([label, md(say.choice(key, value))])
         else:
             rows.append([label, md(value)])
     layout = getattr(section, "layout", None)
@@ -172,17 +204,36 @@ class SiteData:
 
     analysis: Analysis
     show: Display
-    builds: list[Build]
+    builds: list[Build]  # the published builds, by id
     used_by: dict[tuple[str, str], list[Build]]
+    drafts: bool = False  # an internal copy that shows drafts
 
     @classmethod
-    def of(cls, analysis: Analysis) -> SiteData:
-        builds = sorted(analysis.shop.builds, key=lambda b: b.id)
+    def of(cls, analysis: Analysis, include_drafts: bool = False) -> SiteData:
+        shown = published_statuses(analysis.shop.rules, include_drafts)
+        builds = sorted((b for b in analysis.shop.builds if b.status in shown), key=lambda b: b.id)
         used_by: dict[tuple[str, str], list[Build]] = defaultdict(list)
         for build in builds:
             for key in parts_of(build):
                 used_by[key].append(build)
-        return cls(analysis, Display(analysis.shop.rules), builds, used_by)
+        return cls(analysis, Display(analysis.shop.rules), builds, used_by,
+                   include_drafts and any(b.status == "draft" for b in builds))
+
+    @functools.cached_property
+    def published(self) -> frozenset[str]:
+        return frozenset(b.id for b in self.builds)
+
+    def similar(self, build_id: str) -> list:
+        """The build's similar builds that are published (a page links only to pages)."""
+        return [s for s in self.analysis.similar[build_id] if s.id in self.published]
+
+    @functools.cached_property
+    def reference(self) -> dict[tuple[str, str], list[Combination]]:
+        """The fitment reference of the published builds."""
+        from builder.history.reference import combinations
+
+        sizings = self.analysis.sizings
+        return combinations([(b, sizings[b.id]) for b in self.builds])
 
     @property
     def rules(self) -> ShopRules:
@@ -198,10 +249,16 @@ class SiteData:
         return self.analysis.predictions[build_id]
 
 
-def generated_pages(analysis: Analysis, progress: Callable[[int, int], None] | None = None
-                    ) -> Iterator[tuple[str, str]]:
-    """Every generated file for the docs dir as (relative posix path, text)."""
-    data = SiteData.of(analysis)
+def published_statuses(rules: ShopRules, include_drafts: bool = False) -> frozenset[str]:
+    """Statuses the site shows: the shop's `publish` rule, drafts only on request."""
+    return frozenset(rules.publish) | ({"draft"} if include_drafts else set())
+
+
+def generated_pages(analysis: Analysis, progress: Callable[[int, int], None] | None = None,
+                    include_drafts: bool = False) -> Iterator[tuple[str, str]]:
+    """Every generated file for the docs dir as (relative posix path, text): the builds
+    whose status the shop publishes; drafts too with `include_drafts` (an internal copy)."""
+    data = SiteData.of(analysis, include_drafts)
     yield "index.md", home_page(data)
     yield "charts/effort-computed-vs-measured.svg", effort_scatter(data)
     yield "reference.md", reference_page(data)
@@ -227,10 +284,16 @@ def home_page(data: SiteData) -> str:
     parts = sum(len(p) for p in data.analysis.shop.parts.values())
     latest = by_date(builds)[:LATEST]
     rows = [[build_link(b.id, ""), md(b.date.isoformat() if b.date else NONE), md(b.status),
-             md(b.gearbox.family), data.show.q(measured_effort(b), "force"), md(b.outcome)]
+             free(b.gearbox.family), data.show.q(measured_effort(b), "force"), free(b.outcome)]
             for b in latest]
-    return "\n\n".join([
-        heading(data.rules.site_title),
+    out = [heading(data.rules.site_title)]
+    if data.drafts:
+        drafts = sum(b.status == "draft" for b in builds)
+        out.append(f'!!! danger "Internal copy: includes {drafts} draft build'
+                   f'{"s" if drafts != 1 else ""}"\n    Drafts are proposals with customers\' cars in '
+                   "them. Do not publish this copy; build the public site without "
+                   "`--include-drafts`.")
+    out += [
         "Hydraulic clutch conversions recorded by this shop: what was fitted, what the "
         "calculation promised and what the finished car measured.",
         '!!! warning "Before you work on a hydraulic clutch"\n    Line pressure runs to several '
@@ -244,11 +307,12 @@ def home_page(data: SiteData) -> str:
         "within 10 % of the calculation. The [calibration](calibration.md) page shows what the "
         "shop has learned from the differences.",
         "![Computed against measured pedal effort](charts/effort-computed-vs-measured.svg)",
-        "## Latest builds",
-        table(["Build", "Date", "Status", "Family", "Measured effort", "Outcome"], rows),
+        unindexed_heading(2, "Latest builds"),
+        unindexed(table(["Build", "Date", "Status", "Family", "Measured effort", "Outcome"], rows)),
         "All builds are listed on the [builds](builds/index.md) page; verified combinations by "
         "gearbox family are in the [fitment reference](reference.md).",
-    ]) + "\n"
+    ]
+    return "\n\n".join(out) + "\n"
 
 
 def effort_scatter(data: SiteData) -> str:
@@ -268,76 +332,115 @@ def effort_scatter(data: SiteData) -> str:
     return chart.render()
 
 
-def _part_or(kind: str, part_id: str | None, text: str) -> str:
-    return part_link(kind, part_id, "") if part_id else md(text)
+def family_anchor(family: str, direction: str) -> str:
+    """The id of a family section on the reference page: from slug() (letters, digits, dot,
+    hyphen, underscore), never raw record text."""
+    return f"family-{slug(family)}-{direction}".lower().replace(".", "-")
 
 
 def reference_page(data: SiteData) -> str:
-    groups = data.analysis.reference
-    out = [heading("Fitment reference"),
+    groups = data.reference
+    out = [heading("Fitment reference", boost=REFERENCE_BOOST, hide=["toc"]),
            "Master, slave and pedal combinations this shop has finished, by gearbox family and "
            "the way the fork tip moves. Only verified builds (checked on the car) and rejected "
            "builds (tried and failed) are listed; a combination that failed is marked "
-           "**\u2718 failed** and should not be repeated without finding out why. Click a column "
-           "heading to sort.",
-           "Measured effort is the median of the builds behind the row; travel margin is the "
-           "smallest computed margin among them (release bearing travel over what the clutch "
-           "needs).",
+           "**\u2718 failed** with what went wrong, and should not be repeated without finding "
+           "out why. Click a column heading to sort.",
+           "Each row gives the master and slave bores and the pedal ratio (pad arm over clevis "
+           "arm), with the catalogue part when one was used; pedal effort is the median measured "
+           "at the pad by the builds behind the row; travel margin is the smallest computed "
+           "margin among them (release bearing travel over what the clutch needs). "
+           "**\u26a0** marks a verified build that a check of this tool flags.",
            '!!! note "A record is not a guarantee"\n    Each row describes what fitted one '
            "shop's cars. Check every part against its maker's specification before ordering."]
     if not groups:
         out.append("No verified or rejected builds yet.")
+    else:
+        out.append("Gearbox families: " + " \u00b7 ".join(
+            f"[{md(family)}, {md(say.fork_words(direction))}](#{family_anchor(family, direction)})"
+            for family, direction in groups))
     for (family, direction), combos in groups.items():
-        out.append(f"## {md(family)} \u2014 {md(FORK_WORDS.get(direction, direction))}")
-        out.append(table(["Result", "Master", "Slave", "Pedal", "Measured effort (median)",
-                          "Travel margin (least)", "Builds"],
-                         [_reference_row(data, combo) for combo in combos]))
+        # the section's id sits on a wrapper, never in the heading beside record text
+        out.append(f'<div id="{family_anchor(family, direction)}" markdown>\n\n'
+                   f"## {md(family)} \u2014 {md(say.fork_words(direction))}\n\n"
+                   + table(["Result", "Master", "Slave", "Pedal ratio", "Pedal effort",
+                            "Margin", "Builds"], [_reference_row(data, combo) for combo in combos])
+                   + "\n\n</div>")
     return "\n\n".join(out) + "\n"
 
 
+def _flagged(data: SiteData, build: Build) -> tuple:
+    return data.sizing(build.id).flags
+
+
 def _reference_row(data: SiteData, combo: Combination) -> list[str]:
+    show = data.show
+    rejected = [b for b in combo.builds if b.status == "rejected"]
+    flagged = [b for b in combo.builds if b.status == "verified" and _flagged(data, b)]
     if combo.rejected and combo.verified:
         result = f"**\u2718 mixed**: {combo.verified} verified, {combo.rejected} failed"
     elif combo.rejected:
         result = f"**\u2718 failed** ({combo.rejected})"
     else:
         result = f"\u2714 verified ({combo.verified})"
-    slave = (f"{say.quantity(combo.slave_bore, 'length', data.show.primary)} bore"
-             if combo.slave_bore is not None
-             else f"{say.quantity(combo.slave_area, 'area', data.show.primary)} piston")
+    if flagged:
+        result += f", {len(flagged)} flagged \u26a0"
+    for build in rejected:  # why it failed: the tool's flags, then what the car did
+        why = [say.flag_words(f.code) for f in _flagged(data, build)]
+        said = "; ".join(why + ([build.outcome] if build.outcome else [])) or "no reason recorded"
+        result += "<br>" + free(f"{build.id}: {said}")
+    if combo.slave_bore is not None:
+        slave = show.q(combo.slave_bore, "length")
+    else:
+        slave = f"{show.q(combo.slave_area, 'area')} piston"
     return [result,
-            _part_or("masters", combo.master_part,
-                     f"{say.quantity(combo.master_bore, 'length', data.show.primary)} bore"),
-            _part_or("slaves", combo.slave_part, slave),
-            _part_or("pedals", combo.pedal_part, f"{say.ratio(combo.pedal_ratio)} pedal"),
-            data.show.q(combo.median_measured_effort, "force"),
+            _with_part("masters", combo.master_part, show.q(combo.master_bore, "length")),
+            _with_part("slaves", combo.slave_part, slave),
+            _with_part("pedals", combo.pedal_part, ratio(combo.pedal_ratio)),
+            show.q(combo.median_measured_effort, "force"),
             pct(combo.least_margin, signed=True),
-            ", ".join(build_link(b.id, "") for b in combo.builds)]
+            "<br>".join(_build_mark(data, b) for b in combo.builds)]
+
+
+def _with_part(kind: str, part_id: str | None, figure: str) -> str:
+    """A figure, with the catalogue part it came from (a link) on a line of its own."""
+    return f"{figure} <br>{part_link(kind, part_id, '')}" if part_id else figure
+
+
+def _build_mark(data: SiteData, build: Build) -> str:
+    """A build's link, marked when it is verified yet the tool flags it (with the flags)."""
+    link = build_link(build.id, "")
+    flags = _flagged(data, build)
+    if build.status == "verified" and flags:
+        return f"{link} \u26a0 {md(', '.join(say.flag_words(f.code) for f in flags))}"
+    return link
 
 
 def builds_index(data: SiteData) -> str:
     rows = []
-    for b in data.builds:
+    for b in by_date(data.builds):
+        slave = (data.show.q(b.slave.bore, "length") if b.slave.bore is not None
+                 else f"{data.show.q(b.slave.area, 'area')} piston")
         rows.append([build_link(b.id, "builds"), md(b.date.isoformat() if b.date else NONE),
-                     md(b.status), md(b.gearbox.family), md(b.vehicle),
-                     data.show.q(b.master.bore, "length"),
-                     data.show.q(b.slave.bore, "length") if b.slave.bore else data.show.q(b.slave.area, "area"),
-                     data.show.q(data.sizing(b.id).effort_predicted, "force"),
-                     data.show.q(measured_effort(b), "force"), md(b.outcome)])
+                     md(b.status), free(b.gearbox.family),
+                     md(say.choice("gearbox.fork_tip_moves", b.gearbox.fork_tip_moves)),
+                     f"{data.show.q(b.master.bore, 'length')}<br>{slave}",
+                     ratio(data.sizing(b.id).ratio_pedal),
+                     data.show.q(measured_effort(b), "force"), free(b.outcome)])
     return "\n\n".join([
-        heading("Builds"),
-        f"All {len(data.builds)} build records, newest id last. Click a column heading to sort; "
-        "use the search box to find a build by id, gearbox family, part id, bore or words in "
-        "its notes.",
-        table(["Build", "Date", "Status", "Family", "Vehicle", "Master bore", "Slave bore",
-               "Computed effort", "Measured effort", "Outcome"], rows)]) + "\n"
+        heading("Builds", hide=["toc"]),
+        f"All {len(data.builds)} published build records, newest first. Click a column heading "
+        "to sort; use the search box to find a build by id, gearbox family, part id, bore or "
+        "words in its notes.",
+        unindexed(table(["Build", "Date", "Status", "Family", "Fork tip", "Master / slave bore",
+                         "Pedal ratio", "Measured effort", "Outcome"], rows))]) + "\n"
 
 
 def parts_index(data: SiteData) -> str:
     out = [heading("Parts"), "The shop's catalogue. Each part's page lists the builds that used it and "
            "how they came out."]
     for kind, parts in sorted(data.analysis.shop.parts.items()):
-        out.append(f"## {md(PART_KINDS.get(kind, (kind, kind))[1])}s")
+        out.append(f"## {md(say.part_kind(kind, several=True))}")
         rows = []
         for part_id, part in sorted(parts.items()):
             users = data.used_by.get((kind, part_id), [])
@@ -346,43 +449,62 @@ def parts_index(data: SiteData) -> str:
                                                                      fields.PART_KINDS[kind])[:3]),
                          str(len(users)), str(sum(u.status == "verified" for u in users)),
                          str(sum(u.status == "rejected" for u in users))])
-        out.append(table(["Part", "Label", "Key values", "Builds", "Verified", "Rejected"], rows))
+        out.append(unindexed(table(["Part", "Label", "Key values", "Builds", "Verified",
+                                    "Rejected"], rows)))
     return "\n\n".join(out) + "\n"
 
 
 def part_page(data: SiteData, part: Part) -> str:
-    title = PART_KINDS.get(part.kind, (part.kind, part.kind))[1]
+    title = say.part_kind(part.kind)
     users = data.used_by.get((part.kind, part.id), [])
     rows = []
-    for b in users:
-        rows.append([build_link(b.id, "part"), md(b.status), md(b.gearbox.family),
+    for b in by_date(users):
+        rows.append([build_link(b.id, "part"), md(b.status), free(b.gearbox.family),
+                     other_parts(data, b, part.kind),
                      data.show.q(measured_effort(b), "force"),
-                     pct(data.deltas(b.id).effort, signed=True),
-                     pct(data.sizing(b.id).margin, signed=True), md(b.outcome)])
-    out = [heading(f"{title} {part.id}")]
+                     pct(data.sizing(b.id).margin, signed=True), free(b.outcome)])
+    out = [heading(f"{title} {part.id}", hide=["toc"])]
     if part.label:
         out.append(md(part.label))
     out.append(table(["Field", "Value"], section_rows(part.section, data.show,
                                                       fields.PART_KINDS[part.kind])))
-    out.append("## Where used")
+    out.append(unindexed_heading(2, "Where used"))
     if rows:
-        out.append(table(["Build", "Status", "Family", "Measured effort", "Effort delta",
-                          "Travel margin", "Outcome"], rows))
+        out.append(unindexed(table(["Build", "Status", "Family", "With", "Measured effort",
+                                    "Travel margin", "Outcome"], rows)))
     else:
-        out.append("No build uses this part yet.")
+        out.append("No published build uses this part yet.")
     return "\n\n".join(out) + "\n"
+
+
+def other_parts(data: SiteData, build: Build, kind: str) -> str:
+    """What a build fitted besides the part of `kind`: each catalogue part as a link, each
+    part written out in the record by its defining figure (bore, ratio, release load)."""
+    show, sizing = data.show, data.sizing(build.id)
+    figures = {
+        "gearboxes": md(build.gearbox.family),
+        "clutches": f"{show.q(build.clutch.release_load, 'force')} release load",
+        "masters": f"{show.q(build.master.bore, 'length')} bore",
+        "slaves": (f"{show.q(build.slave.bore, 'length')} bore" if build.slave.bore is not None
+                   else f"{show.q(build.slave.area, 'area')} piston"),
+        "pedals": f"{ratio(sizing.ratio_pedal)} ratio",
+    }
+    cells = []
+    for other, (attr, _title) in PART_KINDS.items():
+        if other == kind:
+            continue
+        part_id = getattr(getattr(build, attr), "part", None)
+        shown = part_link(other, part_id, "part") if part_id else figures[other]
+        cells.append(f"{attr.capitalize()}: {shown}")
+    return "<br>".join(cells)
 
 
 def calibration_page(data: SiteData) -> str:
     cal = data.analysis.calibration
     groups = [cal.shop] + [cal.families[name] for name in sorted(cal.families)]
-    effort_rows = [[md(g.name), str(g.n), pct(g.efficiency),
-                    _spread(g.efficiency_median, g.efficiency_mad), md(say.factor(g.weight)),
-                    pct(g.loo_median_abs_err), pct(g.loo_p90_abs_err)] for g in groups]
-    travel_rows = [[md(g.name), str(g.n_travel),
-                    md(say.factor(g.travel_factor)),
-                    _spread(g.travel_factor_median, g.travel_factor_mad, percent=False)]
-                   for g in groups]
+    cells = [[md(cell) for cell in say.calibration_cells(g)] for g in groups]
+    effort_rows = [row[:7] for row in cells]
+    travel_rows = [row[:1] + row[7:] for row in cells]
     return "\n\n".join([
         heading("Calibration"),
         "What the shop's own measurements say about its losses. A family with few builds leans "
@@ -391,25 +513,15 @@ def calibration_page(data: SiteData) -> str:
         "Apparent efficiency is the ideal pedal effort (release load over overall ratio) "
         "divided by the measured effort. The errors show how far a calibrated prediction has "
         "been off, each build predicted from all the others (leave-one-out).",
-        table(["Group", "Builds", "Efficiency used", "Own median \u00b1 MAD", "Weight",
-               "Typical error", "90 % of errors below"], effort_rows),
+        table(list(say.CALIBRATION_HEADINGS[:7]), effort_rows),
         "![Apparent efficiency by gearbox family](charts/calibration-efficiency.svg)",
         "## Slave travel",
         "The travel factor is the measured slave travel over the computed slave travel; below 1 "
         "the line and fluid take up more than the calculation allows.",
-        table(["Group", "Builds with travel", "Travel factor used", "Own median \u00b1 MAD"],
-              travel_rows),
+        table(list(say.CALIBRATION_HEADINGS[:1] + say.CALIBRATION_HEADINGS[7:]), travel_rows),
         "![Travel factor by gearbox family](charts/calibration-travel.svg)",
         "How these numbers are worked out is on the [method](method.md) page.",
     ]) + "\n"
-
-
-def _spread(median: float | None, mad: float | None, percent: bool = True) -> str:
-    if median is None:
-        return NONE
-    if percent:
-        return f"{pct(median)} \u00b1 {pct(mad or 0.0)}"
-    return f"{md(say.factor(median))} \u00b1 {md(say.factor(mad or 0.0))}"
 
 
 def calibration_charts(data: SiteData) -> Iterator[tuple[str, str]]:
@@ -446,13 +558,20 @@ def build_files(data: SiteData, build: Build) -> Iterator[tuple[str, str]]:
 
 
 def build_page(data: SiteData, build: Build, sizing: Sizing, with_curve: bool) -> str:
+    """One build. Printed (site_src/css/fitment.css, @media print) it is a bench sheet: the
+    build, its flags, computed against measured, the inputs and the cautions; pictures of
+    the effort curve and the similar builds are left off paper."""
     show = data.show
     name = slug(build.id)
-    out = [heading(build.id),
-           table(["Status", "Date", "Gearbox family", "Technician", "Vehicle"],
+    out = [heading(f"{build.id} \u2014 {build.gearbox.family}", boost=BUILD_BOOST),
+           table(["Status", "Date", "Gearbox family", "Fork tip", "Technician", "Vehicle"],
                  [[md(STATUS_WORDS.get(build.status, build.status)),
                    md(build.date.isoformat() if build.date else NONE), md(build.gearbox.family),
+                   md(say.choice("gearbox.fork_tip_moves", build.gearbox.fork_tip_moves)),
                    md(build.technician), md(build.vehicle)]])]
+    if build.status == "draft":
+        out.append('!!! note "Draft"\n    A proposal, not a finished build: nothing here was '
+                   "measured on a car.")
     if build.outcome:
         out.append(f"**Outcome:** {md(build.outcome)}")
     out += flag_blocks(sizing, show.primary)
@@ -460,29 +579,44 @@ def build_page(data: SiteData, build: Build, sizing: Sizing, with_curve: bool) -
     out.append(result_table(data, build, sizing))
     out.append(prediction_text(data, build))
     out.append("## Pedal linkage")
-    out.append(f"![Pedal linkage of {md(build.id)}, to scale]({name}-linkage.svg)")
+    out.append(f"![Pedal linkage of {md(build.id)}, to scale]({name}-linkage.svg)"
+               "{ .fitment-linkage }")
     if with_curve:
-        out.append("## Pedal effort through the stroke")
-        out.append(f"![Pedal effort against pad travel for {md(build.id)}]({name}-effort.svg)")
+        out.append(unindexed("## Pedal effort through the stroke\n\n"
+                             f"![Pedal effort against pad travel for {md(build.id)}]"
+                             f"({name}-effort.svg)", "fitment-no-print", indexed=True))
     out.append("## Ratios, travel, pressure and volume")
     out.append(engineering_table(data, build, sizing))
     out.append("## Inputs")
+    inputs = []
     for declared in fields.SECTIONS:
         section = getattr(build, declared.name)
         if section is not None:
-            out.append(f"### {declared.title}")
-            out.append(table(["Field", "Value"], section_rows(section, show, declared.name)))
+            inputs.append(unindexed(f"### {declared.title}\n\n" + table(
+                ["Field", "Value"], section_rows(section, show, declared.name)),
+                "fitment-input", indexed=True))
+    out.append(unindexed("\n\n".join(inputs), "fitment-inputs", indexed=True))
     used = parts_of(build)
     if used:
         out.append("## Catalogue parts used")
         out.append("\n".join(f"- {PART_KINDS[kind][1]}: {part_link(kind, pid, 'builds')}"
                              for kind, pid in used))
-    out.append("## Similar builds")
-    out.append(similar_table(data, build))
     if build.notes:
         out.append("## Notes")
         out.append(md_paragraphs(build.notes))
+    out.append(unindexed(f"{unindexed_heading(2, 'Similar builds')}\n\n{similar_table(data, build)}",
+                         "fitment-no-print"))
+    out.append(unindexed(BENCH_CAUTION, "fitment-print-only"))
     return "\n\n".join(out) + "\n"
+
+
+BENCH_CAUTION = (
+    "**Cautions.** Clutch hydraulics run at several hundred psi: use hoses, fittings and "
+    "cylinders rated for the pressure above. Brake fluid is toxic, strips paint and takes up "
+    "water; wear gloves and eye protection and never mix silicone (DOT 5) with glycol fluids. "
+    "Confirm full release on the car before it is driven: a clutch that does not release can "
+    "let a car creep. The component makers' specifications, local vehicle codes and licensed "
+    "practice come first.")
 
 
 def flag_blocks(sizing: Sizing, primary: str) -> list[str]:
@@ -565,13 +699,13 @@ def engineering_table(data: SiteData, build: Build, sizing: Sizing) -> str:
 
 
 def similar_table(data: SiteData, build: Build) -> str:
-    similar = data.analysis.similar[build.id]
+    similar = data.similar(build.id)
     if not similar:
         return "No similar measured builds yet."
     rows = [[build_link(s.id, "builds"), md(say.factor(s.distance)),
              md(say.differences_text(s.differs, data.show.primary)) or "nothing notable",
              md(s.status),
-             data.show.q(s.measured_effort, "force"), md(s.outcome)] for s in similar]
+             data.show.q(s.measured_effort, "force"), free(s.outcome)] for s in similar]
     return ("Distance 0 is an identical build; each 1.0 is about one different category or a "
             "10 % difference in one size ([method](../method.md)).\n\n"
             + table(["Build", "Distance", "What differs", "Status", "Measured effort", "Outcome"], rows))
