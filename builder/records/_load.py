@@ -5,6 +5,7 @@ again carefully, with positions, only when something in it needs reporting.
 """
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import errno
 import os
@@ -85,6 +86,7 @@ def _convert_rules(data: dict, report: f.Reporter) -> model.ShopRules | None:
 
 
 def _rules(root: Path) -> tuple[model.ShopRules | None, list[Problem]]:
+    """shop.yaml, refused unread when it is a link leading out of the records folder."""
     return _load(root / "shop.yaml", "shop", _convert_rules, root)
 
 
@@ -136,7 +138,7 @@ def _catalogue(root: Path) -> tuple[dict[str, dict[str, model.Part]], list[Probl
             known = ", ".join(f"{kind}.yaml" for kind in model.PART_KINDS)
             problems.append(Problem(str(path), 0, 0, "file", f"not a catalogue file; the catalogue is {known} in {root / 'parts'}"))
             continue
-        parts, found = _load(path, "parts", _parts_converter(path, taken), root)
+        parts, found = _load(path, "parts", _parts_converter(path, taken))
         problems += found
         for part in parts or ():
             catalogue[part.kind][part.id] = part
@@ -238,8 +240,11 @@ def _inside(path: Path, folder: Path) -> bool:
     return Path(os.path.realpath(path)).is_relative_to(os.path.realpath(folder))
 
 
-def _load_build(path: Path, catalogue: dict, in_builds: bool, root: Path) -> tuple[model.Build | None, list[Problem]]:
-    """`in_builds`: the file sits under records/builds/, so its id must equal its name."""
+def _load_build(path: Path, catalogue: dict, in_builds: bool, root: Path | None = None
+                ) -> tuple[model.Build | None, list[Problem]]:
+    """`in_builds`: the file sits under records/builds/, so its id must equal its name.
+    `root`: the records folder, when `path` was not listed by _record_files (which checks
+    the links it meets) and a link out of it must be refused."""
     return _load(path, "build", _build_converter(catalogue, path.stem if in_builds else None), root)
 
 
@@ -255,7 +260,8 @@ def load_build_file(path: str | os.PathLike, shop: model.Shop) -> model.Build:
 
 def _link_out_of_records(path: Path, root: Path) -> Problem | None:
     """A problem when `path` sits in the records folder but is (or passes through) a link to
-    somewhere outside it; found from the link itself, before the target is read."""
+    somewhere outside it; found from the link itself, before the target is read. It costs a
+    realpath (an lstat per component): the walker asks only about the links it meets."""
     where = Path(os.path.abspath(path))
     real_root = Path(os.path.realpath(root))
     if not (where.is_relative_to(os.path.abspath(root)) or where.is_relative_to(real_root)):
@@ -284,6 +290,9 @@ def _record_files(folder: Path, root: Path) -> tuple[list[Path], list[Problem]]:
     that is a link (not followed), a hidden folder holding records, a wrongly named file.
     A missing `folder` holds nothing."""
     found: list[Path] = []
+    escape = _link_out_of_records(folder, root)
+    if escape is not None:
+        return [], [dataclasses.replace(escape, field="folder")]
     problems: list[Problem] = []
     pending = [folder]
     while pending:
@@ -311,7 +320,11 @@ def _record_files(folder: Path, root: Path) -> tuple[list[Path], list[Problem]]:
                                         f"{os.path.realpath(path)}; links to folders are not "
                                         "followed: move the folder here"))
             elif _is_read(name):
-                found.append(path)
+                escape = _link_out_of_records(path, root) if entry.is_symlink() else None
+                if escape is None:
+                    found.append(path)
+                else:
+                    problems.append(escape)
             elif _looks_like_a_record(name):
                 problems.append(Problem(str(path), 0, 0, "file", f"not read: {name!r} is not named "
                                         "like a record; name it <id>.yaml (lower-case .yaml or "
@@ -371,7 +384,7 @@ def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress |
     builds, problems, inside_builds = [], [], []
     for done, path in enumerate(paths, 1):
         inside = in_builds is None or path in in_builds
-        build, found = _load_build(path, catalogue, inside, root)
+        build, found = _load_build(path, catalogue, inside)
         problems += found
         if build is not None:
             builds.append(build)
@@ -438,7 +451,11 @@ def _given(root: Path, paths: list[Path], progress: Progress | None
             targets += listing
             problems += unread
         elif given.exists() or given.is_symlink():  # a broken link or a loop: said when read
-            targets.append(given)
+            escape = _link_out_of_records(given, root)
+            if escape is None:
+                targets.append(given)
+            else:
+                problems.append(escape)
         else:
             problems.append(Problem(str(given), 0, 0, "file", "no such file or folder"))
     real = {path: Path(os.path.realpath(path)) for path in targets}  # each resolved once

@@ -24,7 +24,7 @@ Where = tuple  # a location in a document: keys and list indices, e.g. ("pedal",
 # A sound upper bound on nesting, cheap enough for every file: flow openers plus two levels
 # per column where a block collection can start (see _depth_bound). Only a file whose bound
 # passes MAX_DEPTH has its parser events walked.
-_LINE_PREFIX = re.compile(r"^[ \t]*(?:(?:---|[-?:]|[&!][^ \t\n]*)[ \t]+)*", re.M)
+_LINE_PREFIX = re.compile(r"\n[ \t]*(?:(?:---|[-?:]|[&!][^ \t\n]*)[ \t]+)*")  # on "\n" + text
 _PREFIX_TOKEN = re.compile(r"(?:---|[-?:]|[&!][^ \t\n]*)[ \t]+")
 _MISSING = (errno.ENOENT, errno.ENOTDIR)  # what Path.exists() calls absent (a loop is said apart)
 _TIMESTAMP = "tag:yaml.org,2002:timestamp"
@@ -171,7 +171,8 @@ def _depth_bound(text: str) -> int:
     """
     flow = text.count("[") + text.count("{")
     columns = set()
-    for prefix in set(_LINE_PREFIX.findall(text)):
+    for found in set(_LINE_PREFIX.findall("\n" + text)):  # a literal "\n" first: faster than ^ and re.M
+        prefix = found[1:]
         indent = len(prefix) - len(prefix.lstrip(" \t"))
         columns.add(indent)
         columns.update(token.end() for token in _PREFIX_TOKEN.finditer(prefix, indent))
