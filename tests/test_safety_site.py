@@ -307,3 +307,41 @@ def test_a_held_lock_marks_a_live_build(tmp_path):
             with pytest.raises(OSError):
                 fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
     assert not folder.exists()
+
+
+def test_a_parent_folder_that_cannot_be_written_is_a_plain_error(shop, monkeypatch):
+    # As root every folder is writable: the refusal is simulated where the work folder is made.
+    real_mkdtemp = site_build.tempfile.mkdtemp
+
+    def mkdtemp(prefix=None, dir=None, **kwargs):
+        if prefix and prefix.startswith(".published"):
+            raise PermissionError(13, "Permission denied", str(dir))
+        return real_mkdtemp(prefix=prefix, dir=dir, **kwargs)
+
+    monkeypatch.setattr(site_build.tempfile, "mkdtemp", mkdtemp)
+    result = fitment(shop, "site", "build", "--out", "published")
+    assert_refused(result, "site: could not write the site: Permission denied")
+    assert not Path("published").exists()
+
+
+def test_a_file_written_into_the_old_site_during_the_swap_is_kept_not_deleted(tmp_path, monkeypatch):
+    # A file that reaches the old site after its last check (here: just as it is swapped out)
+    # is found by the check before deletion; the old site is set aside whole, and said so.
+    result = analysis(2, root=str(tmp_path / "records"))
+    out = tmp_path / "site"
+    build_site(result, out)
+    real_exchange = site_build.exchange
+
+    def exchange_then_write(one, other):
+        done = real_exchange(one, other)
+        if not done:
+            pytest.skip("renameat2(RENAME_EXCHANGE) unsupported here")
+        (one / "late.txt").write_text("precious")  # `one` now holds the old site
+        return done
+
+    monkeypatch.setattr(site_build, "exchange", exchange_then_write)
+    with pytest.raises(SiteBuildError, match="kept here instead of deleted") as caught:
+        build_site(result, out)
+    kept = Path(caught.value.problems[0].path)
+    assert (kept / "late.txt").read_text() == "precious"
+    assert (out / "index.html").is_file() and not (out / "late.txt").exists()

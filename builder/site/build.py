@@ -80,17 +80,22 @@ def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.Pat
     steps = len(analysis.shop.builds) + 2
     _make_folder(out.parent)
     remove_leftovers(out)
-    with work_folder(Path(tempfile.gettempdir()), DOCS_PREFIX) as work:
-        docs = write_sources(layers, work)
-        per_page = None if progress is None else (lambda done, _total: progress(done, steps))
-        write_generated(analysis, docs, per_page)
-        with work_folder(out.parent, f".{out.name}{STAGE_INFIX}") as stage:
-            new = stage / "site"
-            run_mkdocs(work / CONFIG, docs, new, analysis.shop.rules.site_title, layers[-1])
-            _tick(progress, steps - 1, steps)
-            write_manifest(new)
-            publish(new, out)
-            _tick(progress, steps, steps)
+    try:
+        with work_folder(Path(tempfile.gettempdir()), DOCS_PREFIX) as work:
+            docs = write_sources(layers, work)
+            per_page = None if progress is None else (lambda done, _total: progress(done, steps))
+            write_generated(analysis, docs, per_page)
+            with work_folder(out.parent, f".{out.name}{STAGE_INFIX}") as stage:
+                new = stage / "site"
+                run_mkdocs(work / CONFIG, docs, new, analysis.shop.rules.site_title, layers[-1])
+                _tick(progress, steps - 1, steps)
+                write_manifest(new)
+                publish(new, out)
+                _tick(progress, steps, steps)
+    except OSError as error:  # a folder we may not write in, a full disk: said plainly
+        where = error.filename or out
+        raise SiteBuildError(where, f"could not write the site: {error.strerror or error}; "
+                                    "the last site stays") from None
 
 
 def check_outside_records(out: Path, records: Path) -> None:
