@@ -165,6 +165,16 @@ def test_a_build_reached_twice_through_a_link_is_one_duplicate_for_every_command
     every_command_refuses(shop, f"{twin}:2:5: id: this file is a link to {original}")
 
 
+def test_a_link_listed_before_its_target_is_named_as_the_link(shop):
+    original = shop / "builds" / "2023" / "HW-0102.yaml"
+    early = shop / "builds" / "2022"
+    early.mkdir()
+    (early / "HW-0102.yaml").symlink_to(original)
+    (problem,) = validate_paths(shop, [])
+    assert problem.path == str(original)
+    assert problem.message.startswith(f"{early / 'HW-0102.yaml'} is a link to this file")
+
+
 def test_a_link_to_a_record_elsewhere_in_records_is_read_once(shop):
     kept = shop / "kept"
     kept.mkdir()

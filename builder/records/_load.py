@@ -362,10 +362,13 @@ def _duplicate_ids(builds_dir: Path, checked: Iterable[Path], listing: list[Path
         original = first.get(path.stem)
         if original is not None and original != path:
             line, col = locate(path, "id")
-            same = os.path.realpath(original) == os.path.realpath(path)
-            how = (f"this file is a link to {original}, so the same build would be read twice; "
-                   "remove the link") if same else (f"build id {path.stem} is already used by "
-                                                    f"{original}; ids must be unique across {builds_dir}")
+            if os.path.realpath(original) != os.path.realpath(path):
+                how = (f"build id {path.stem} is already used by {original}; ids must be unique "
+                       f"across {builds_dir}")
+            elif path.is_symlink():
+                how = f"this file is a link to {original}, so the same build would be read twice; remove the link"
+            else:
+                how = f"{original} is a link to this file, so the same build would be read twice; remove the link"
             problems.append(Problem(str(path), line, col, "id", how))
     return problems
 
