@@ -211,7 +211,9 @@ def nesting(draw):
             inner = min(depth, 60)
             pieces.append(f"{key}: &a{index} " + "[" * inner + "x" + "]" * inner)
             pieces.append(f"{key}r: " + "[" * inner + f"*a{index}" + "]" * inner)
-    return ("\n".join(pieces) + "\n").encode("utf-8")
+    text = "\n".join(pieces) + "\n"
+    line_break = draw(st.sampled_from(["\n", "\n", "\r\n", "\r", "\x85", "\u2028", "\u2029"]))
+    return text.replace("\n", line_break).encode("utf-8")  # YAML 1.1 breaks lines at each of them
 
 
 def _layout_text(pad, clevis, seat, rotation) -> bytes:

@@ -89,6 +89,18 @@ def test_sixty_four_levels_are_read_and_sixty_five_refused():
     assert (line, col, message) == (1, 67, "nesting is deeper than 64 levels")
 
 
+@pytest.mark.parametrize("line_break", ["\r", "\r\n", "\x85", "\u2028", "\u2029"])
+def test_block_nesting_is_counted_whatever_breaks_the_lines(shop, line_break):
+    # YAML 1.1 (5.4) breaks lines at CR, NEL, LS and PS as at LF: 700 levels of indented keys
+    # written with them fit in the file limit and must be refused like any other nesting.
+    text = line_break.join(" " * level + f"k{level}:" for level in range(700)) + " x" + line_break
+    target = shop / "builds" / "2025" / "QA-0003.yaml"
+    target.write_bytes(text.encode("utf-8"))
+    result = fitment(shop, "validate", str(target))
+    assert result.returncode == 1, result.stderr[-2000:]
+    assert "nesting is deeper than 64 levels" in result.stderr and "Traceback" not in result.stderr
+
+
 def test_nesting_through_aliases_counts_each_aliased_value():
     # Three anchored values of 30 levels nested through aliases: 1 + 30 + 31 + 31 levels.
     text = ("a: &a0 " + "[" * 30 + "x" + "]" * 30 + "\n"
