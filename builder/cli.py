@@ -335,8 +335,12 @@ def site_build(ctx: Context, out: Path, include_drafts: bool) -> None:
 def site_serve(ctx: Context, port: int) -> None:
     """Build the site and serve it on 127.0.0.1 for a look (Ctrl-C stops)."""
     from builder.site import serve
+    from builder.site.serve import PortUnavailable
 
-    _run(lambda: serve(ctx.records, port=port))
+    try:
+        _run(lambda: serve(ctx.records, port=port))
+    except PortUnavailable as error:  # found before anything is loaded or built
+        raise click.BadParameter(str(error), param_hint="'--port'") from None
 
 
 if __name__ == "__main__":

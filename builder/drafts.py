@@ -5,6 +5,7 @@ A new file is created exclusively (never overwriting) and then validated.
 from __future__ import annotations
 
 import datetime as dt
+import errno
 import os
 import re
 from pathlib import Path
@@ -61,8 +62,8 @@ class LeftToFill(InputError):
 
 
 def _modeline(new_file: Path, records: Path) -> str:
-    schema = records.resolve().parent / "schema" / "build.schema.json"
-    relative = os.path.relpath(schema, new_file.resolve().parent)
+    schema = Path(os.path.realpath(records)).parent / "schema" / "build.schema.json"
+    relative = os.path.relpath(schema, os.path.realpath(new_file.parent))  # realpath: no error on a loop
     return f"# yaml-language-server: $schema={Path(relative).as_posix()}\n"
 
 
@@ -96,6 +97,66 @@ def copy_inputs(text: str, new_id: str, like_id: str, today: dt.date) -> str:
     return "\n".join(out) + "\n"
 
 
+def _write_new(records: Path, target: Path, text: str) -> None:
+    """Create `target` (records/builds/<year>/<id>.yaml) exclusively, inside the records folder.
+
+    The builds folder must resolve inside the records folder; the year folder is made when
+    missing and must be a real folder (a link, even a dangling one, or a file there is an
+    error); no link is followed at the year folder or the file (O_NOFOLLOW, O_EXCL: an
+    existing name, a planted link included, is never written through).
+    """
+    builds_dir, year = target.parent.parent, target.parent.name
+    real_records = os.path.realpath(records)
+    real_builds = os.path.realpath(builds_dir)
+    if not Path(real_builds).is_relative_to(real_records) or Path(real_builds) == Path(real_records):
+        raise InputError([Problem(str(builds_dir), 0, 0, "folder",
+                                  f"leads to {real_builds}, outside the records folder "
+                                  f"{real_records}; nothing was written")])
+    folder_flags = os.O_RDONLY | os.O_DIRECTORY | os.O_NOFOLLOW
+    try:
+        os.makedirs(real_builds, exist_ok=True)
+        builds_fd = os.open(real_builds, os.O_RDONLY | os.O_DIRECTORY)
+    except OSError as error:
+        raise InputError([_not_a_folder(builds_dir, error)]) from None
+    try:
+        try:
+            os.mkdir(year, dir_fd=builds_fd)
+        except FileExistsError:
+            pass
+        except OSError as error:
+            raise InputError([_not_a_folder(target.parent, error)]) from None
+        try:
+            year_fd = os.open(year, folder_flags, dir_fd=builds_fd)
+        except OSError as error:
+            raise InputError([_not_a_folder(target.parent, error)]) from None
+        try:
+            file_fd = os.open(target.name, os.O_WRONLY | os.O_CREAT | os.O_EXCL | os.O_NOFOLLOW,
+                              0o666, dir_fd=year_fd)
+        except FileExistsError:
+            raise InputError([Problem(str(target), 0, 0, "id",
+                                      "file already exists; nothing was written")]) from None
+        except OSError as error:
+            raise InputError([Problem(str(target), 0, 0, "file", f"cannot create it: "
+                                      f"{error.strerror or error}; nothing was written")]) from None
+        finally:
+            os.close(year_fd)
+    finally:
+        os.close(builds_fd)
+    with os.fdopen(file_fd, "w", encoding="utf-8") as handle:
+        handle.write(text)
+
+
+def _not_a_folder(path: Path, error: OSError) -> Problem:
+    if error.errno in (errno.ELOOP, errno.EMLINK) or os.path.islink(path):
+        why = (f"is a link (to {os.readlink(path)}); new records go only into real folders "
+               "inside the records folder") if os.path.islink(path) else "is a loop of links"
+    elif error.errno == errno.ENOTDIR:
+        why = "is a file, not a folder"
+    else:
+        why = f"cannot be used: {error.strerror or error}"
+    return Problem(str(path), 0, 0, "folder", f"{why}; nothing was written")
+
+
 def create(records: Path, build_id: str, like_id: str | None,
            today: dt.date | None = None) -> Path:
     """Write records/builds/<year>/<build_id>.yaml exclusively and validate it.
@@ -123,13 +184,8 @@ def create(records: Path, build_id: str, like_id: str | None,
         raise InputError([Problem(where, 0, 0, "like",
                                   f"no build {like_id!r} in {builds_dir}")])
     target = builds_dir / str(today.year) / f"{build_id}.yaml"
-    target.parent.mkdir(parents=True, exist_ok=True)
-    try:
-        with open(target, "x", encoding="utf-8") as handle:
-            handle.write(_modeline(target, records) + body)
-    except FileExistsError:
-        raise InputError([Problem(str(target), 0, 0, "id",
-                                  "file already exists; nothing was written")]) from None
+    text = _modeline(target, records) + body
+    _write_new(records, target, text)
     try:
         load_build_file(target, shop)
     except InputError as error:

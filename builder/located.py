@@ -26,5 +26,5 @@ def unsizable_problems(failures: list[tuple[Build, GeometryError]]) -> list[Prob
     for build, error in failures:
         line, col = locate(build.path, "pedal.layout") if build.path else (0, 0)
         problems.append(Problem(build.path or build.id, line, col, "pedal.layout",
-                                geometry_message(error.reason)))
+                                geometry_message(error)))
     return problems

@@ -25,6 +25,7 @@ from typing import TYPE_CHECKING
 from builder.units import DIMENSIONS, SEEDED_UNITS
 
 if TYPE_CHECKING:
+    from builder.engine.linkage import GeometryError
     from builder.engine.result import Flag
     from builder.history.calibration import Basis, GroupCalibration, Prediction
     from builder.history.similar import Difference
@@ -302,12 +303,25 @@ GEOMETRY_SENTENCES = {
     "pushrod-along-crank": "the pushrod lies along the line from pivot to clevis at rest, so "
                            "turning the pedal cannot push the master",
     "no-lengths": "the pedal needs pivot_to_pad and pivot_to_clevis, or a layout",
+    "dead-centre": "the linkage reaches dead centre {angle} into the {swing} swing to the stop "
+                   "(pushrod in line with the pedal arm); past it the pedal pulls the master "
+                   "back. Move the clevis, the master or the stop so the pushrod stays clear "
+                   "of that line",
+    "ratio-out-of-range": "the pedal ratio reaches {ratio} {angle} into the {swing} swing, "
+                          "outside {low} to {high}: the linkage is beside a dead centre there. "
+                          "Move the clevis, the master or the stop",
 }
 
 
-def geometry_message(reason: str) -> str:
+def geometry_message(error: GeometryError) -> str:
     """Why a pedal cannot push its master, for a located problem at `pedal.layout`."""
-    return GEOMETRY_SENTENCES[reason]
+    def angle(value: float | None) -> str:
+        return NONE if value is None else quantity(value, "angle")
+
+    low, high = error.bounds or (None, None)
+    return GEOMETRY_SENTENCES[error.reason].format(
+        angle=angle(error.angle), swing=angle(error.swing), ratio=ratio(error.ratio),
+        low=ratio(low), high=ratio(high))
 
 
 # --- flags ----------------------------------------------------------------------------------
@@ -353,9 +367,6 @@ def flag_sentence(flag: Flag, primary: str = "imperial") -> str:
     if code == "pushrod-off-axis":
         return (f"The pushrod swings {v['angle']} off the master's bore axis, past the shop's "
                 f"{v['limit']}; the side load wears the master bore.")
-    if code == "linkage-over-centre":
-        return (f"The linkage goes over centre after {v['angle']} of the {v['swing']} swing to "
-                "the stop; past that the pedal pulls the master back.")
     if code == "pad-travel-mismatch":
         return (f"The layout's {v['swing']} swing moves the pad {v['swing_travel']} but the "
                 f"record gives {v['recorded']} of pad travel; the layout is used.")
@@ -371,7 +382,7 @@ FLAG_WORDS = {
     "slave-overtravel": "slave over-travel", "master-bottoms-early": "master bottoms early",
     "release-late": "release late", "effort-high": "pedal heavy", "effort-low": "pedal light",
     "pressure-over-rating": "pressure over rating", "pushrod-off-axis": "pushrod off axis",
-    "linkage-over-centre": "linkage over centre", "pad-travel-mismatch": "pad travel mismatch",
+    "pad-travel-mismatch": "pad travel mismatch",
 }
 
 

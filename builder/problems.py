@@ -35,13 +35,20 @@ class InputError(Exception):
         self.problems = list(problems)
 
 
+# Unicode bidirectional controls (UAX #9): embeddings and overrides U+202A-202E, isolates
+# U+2066-2069, marks U+200E, U+200F and U+061C. Obeyed, they reorder what a terminal shows.
+BIDI_CONTROLS = frozenset(map(chr, [*range(0x202A, 0x202F), *range(0x2066, 0x206A), 0x200E, 0x200F, 0x061C]))
+
+
 def terminal_safe(text: str | None) -> str:
-    """Record text for a terminal: control characters (escape sequences) shown, not obeyed."""
+    """Record text for a terminal: control characters (escape sequences) and bidirectional
+    controls shown as \\xNN or \\uNNNN, not obeyed."""
     if text is None:
         return ""
     return "".join(
         ch if (ch in "\n\t" or (ord(ch) >= 32 and ord(ch) != 127 and not 0x80 <= ord(ch) < 0xA0))
-        else f"\\x{ord(ch):02x}"
+        and ch not in BIDI_CONTROLS
+        else f"\\x{ord(ch):02x}" if ord(ch) < 0x100 else f"\\u{ord(ch):04x}"
         for ch in text
     )
 

@@ -79,7 +79,6 @@ def test_same_value_same_text_wherever_it_appears():
     ("effort-low", "warn", ("effort", "low", "high"), None),
     ("pressure-over-rating", "fail", ("pressure", "rating"), "slave"),
     ("pushrod-off-axis", "warn", ("angle", "limit"), None),
-    ("linkage-over-centre", "fail", ("angle", "swing"), None),
     ("pad-travel-mismatch", "warn", ("swing", "swing_travel", "recorded"), None),
 ])
 def test_every_flag_code_has_a_sentence_with_every_figure(code, severity, names, subject):

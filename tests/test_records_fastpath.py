@@ -49,11 +49,14 @@ def test_refused_form_is_explained_with_an_example_of_its_own_dimension(text, di
     # The number reads, the schema's pattern refuses the sign: the hint shows the field's own units.
     assert example in quantity_message(text, dimension, False)
 
-@pytest.mark.parametrize("marker", ["- ", "? ", "-\t", "?\t"])
-def test_deep_compact_runs_are_caught_whatever_the_marker(marker):
-    # Each compact marker opens one nesting level (YAML 1.1, 7.2): 40 in a row is refused.
-    text = "a: 1\nb:\n  " + marker * 40 + "x\n"
+@pytest.mark.parametrize("marker, position, message", [
+    ("- ", (3, 129), "nesting is deeper than 64 levels"), ("? ", (3, 129), "nesting is deeper than 64 levels"),
+    ("-\t", (3, 4), "YAML:"), ("?\t", (3, 4), "YAML:")])
+def test_deep_compact_runs_are_caught_whatever_the_marker(marker, position, message):
+    # Each compact marker opens one nesting level (YAML 1.1, 7.2): with the root mapping, the
+    # 64th marker (column 3 + 2 * 63) opens level 65. libyaml refuses a tab after a marker.
+    text = "a: 1\nb:\n  " + marker * 70 + "x\n"
     with pytest.raises(NeedsCare):
         fast_load(text)
     (problem,) = careful_load(text).problems
-    assert problem[1:] == (3, 3, "nesting is too deep")
+    assert problem[1:3] == position and problem[3].startswith(message)

@@ -83,7 +83,8 @@ def pressure_flags(s: Sizing, build: Build) -> list[Flag]:
 
 def linkage_flags(s: Sizing, build: Build, rules: ShopRules,
                   pedal: LeverPedal | SliderCrankPedal) -> list[Flag]:
-    """pushrod-off-axis, linkage-over-centre, pad-travel-mismatch (layout mode only)."""
+    """pushrod-off-axis, pad-travel-mismatch (layout mode only); a swing that goes over
+    centre never gets here: the linkage refuses it (GeometryError "dead-centre")."""
     layout = build.pedal.layout
     if pedal.mode != "layout" or layout is None:
         return []
@@ -92,10 +93,6 @@ def linkage_flags(s: Sizing, build: Build, rules: ShopRules,
     if angle is not None and angle > rules.max_pushrod_angle:
         flags.append(Flag("pushrod-off-axis", "warn", (
             Figure("angle", angle, "angle"), Figure("limit", rules.max_pushrod_angle, "angle"))))
-    if pedal.binds:
-        flags.append(Flag("linkage-over-centre", "fail", (
-            Figure("angle", pedal.end_angle, "angle"),
-            Figure("swing", layout.rotation_to_stop, "angle"))))
     swing, recorded = pedal.pad_travel_at_stop, build.pedal.pad_travel
     if abs(swing - recorded) > PAD_TRAVEL_TOLERANCE * recorded:
         flags.append(Flag("pad-travel-mismatch", "warn", (

@@ -13,15 +13,25 @@ from builder.engine.result import LinkagePose
 from builder.model import PedalLayout
 
 SWEEP_SAMPLES = 96  # layout mode: poses computed through the swing
+# The instantaneous ratio a layout may reach anywhere in its swing: the extremes a two-length
+# pedal can have within the plausible lengths (50 mm / 300 mm to 1000 mm / 5 mm). Beyond them
+# the linkage is at or beside a dead centre and its figures mean nothing.
+RATIO_RANGE = (50.0 / 300.0, 1000.0 / 5.0)
 
 
 class GeometryError(ValueError):
-    """A pedal that cannot push a master at all. `reason` is a code of ours:
-    "points-coincide", "pushrod-along-crank" or "no-lengths"; builder.presentation words it."""
+    """A pedal the engine cannot work. `reason` is a code of ours, worded by
+    builder.presentation: "points-coincide", "pushrod-along-crank", "no-lengths",
+    "dead-centre" or "ratio-out-of-range". `angle` (rad) is where in the swing it fails,
+    `swing` (rad) the swing to the stop, `ratio` the instantaneous ratio there and `bounds`
+    the ratios allowed, when known.
+    """
 
-    def __init__(self, reason: str):
+    def __init__(self, reason: str, angle: float | None = None, swing: float | None = None,
+                 ratio: float | None = None, bounds: tuple[float, float] | None = None):
         super().__init__(reason)
-        self.reason = reason
+        self.reason, self.angle, self.swing, self.ratio = reason, angle, swing, ratio
+        self.bounds = bounds
 
 
 def lever_ratio(arm_out: float, arm_in: float) -> float:
@@ -50,7 +60,6 @@ class LeverPedal:
     """Simple mode: constant ratio pivot-to-pad / pivot-to-clevis (Shigley, levers)."""
 
     mode = "simple"
-    binds = False  # a lever has no over-centre point
     __slots__ = ("ratio", "pad_travel_at_stop", "stroke_at_stop", "to_pad", "to_clevis")
 
     def __init__(self, pivot_to_pad: float, pivot_to_clevis: float, pad_travel: float):
@@ -95,6 +104,10 @@ class LeverPedal:
 
 class SliderCrankPedal:
     """Layout mode: pedal = crank about the pivot, pushrod = coupler, master piston = slider.
+
+    The swing from rest to the stop must push the master in all the way: a dead centre
+    (toggle) inside it, a pushrod that cannot stay on the axis, or an instantaneous ratio
+    outside RATIO_RANGE raises GeometryError.
 
     The bore axis runs from the clevis at rest through the pushrod seat; the pushrod
     length is |seat - clevis| at rest. Rotating the crank by theta (the sense that
@@ -165,20 +178,22 @@ class SliderCrankPedal:
         return _pushing(self.state(theta))
 
     def _build_table(self) -> None:
-        """Sample the swing; end it early where the linkage goes over centre (binds)."""
+        """Sample the swing from rest to the stop; refuse a swing the engine cannot work."""
         thetas = _spaced(self.stop_angle)
         states = self.states(thetas)
         bad = next((i for i, st in enumerate(states) if not _pushing(st)), None)
-        self.binds = bad is not None
-        self.end_angle = self.stop_angle
-        if self.binds:
-            self.end_angle = _last_true(self._pushes, thetas[bad - 1], thetas[bad])
-            thetas = _spaced(self.end_angle)
-            states = self.states(thetas)
+        if bad is not None:  # bad > 0: at rest the pushrod is on its axis and pushes
+            toggle = _last_true(self._pushes, thetas[bad - 1], thetas[bad])
+            raise GeometryError("dead-centre", angle=toggle, swing=self.stop_angle)
+        pad, rod, asin = self.pad_radius, self.rod, math.asin
+        low, high = RATIO_RANGE
+        for theta, (_, rate, _) in zip(thetas, states):
+            if not low <= pad / rate <= high:
+                raise GeometryError("ratio-out-of-range", angle=theta, swing=self.stop_angle,
+                                    ratio=pad / rate, bounds=RATIO_RANGE)
         self._thetas = thetas
         self._strokes = [st[0] for st in states]
         self._states = states
-        pad, rod, asin = self.pad_radius, self.rod, math.asin
         self._sweep = tuple(  # arc_length and pushrod_angle written out: this runs for every sample
             (pad * t, s, pad / rate, asin(min(1.0, abs(offset) / rod)))
             for t, (s, rate, offset) in zip(thetas, states)
@@ -198,6 +213,8 @@ class SliderCrankPedal:
         theta = lo + (hi - lo) * (stroke - s_lo) / (s_hi - s_lo)
         for _ in range(8):
             state = self.state(theta)
+            if not _pushing(state):  # a dead centre between two samples of the swing
+                raise GeometryError("dead-centre", angle=theta, swing=self.stop_angle)
             if abs(state[0] - stroke) < 1e-12:
                 break
             theta = min(max(theta - (state[0] - stroke) / state[1], lo), hi)
@@ -222,7 +239,7 @@ class SliderCrankPedal:
 
     def sweep(self) -> tuple[tuple[float, float, float, float], ...]:
         """(pad travel m, master stroke m, instantaneous ratio, pushrod angle rad) from
-        rest to the stop (or to where the linkage binds), at the sampled crank angles."""
+        rest to the stop, at the sampled crank angles."""
         return self._sweep
 
     def pose(self, theta: float) -> LinkagePose:
@@ -242,9 +259,8 @@ class SliderCrankPedal:
         )
 
     def poses(self) -> tuple[LinkagePose, LinkagePose]:
-        """Rest pose and the pose at the stop (or where the linkage binds), master
-        bottoming ignored."""
-        return self.pose(0.0), self.pose(self.end_angle)
+        """Rest pose and the pose at the stop, master bottoming ignored."""
+        return self.pose(0.0), self.pose(self.stop_angle)
 
 
 def _pushing(state: tuple[float, float, float] | None) -> bool:

@@ -5,7 +5,10 @@ again carefully, with positions, only when something in it needs reporting.
 """
 from __future__ import annotations
 
+import dataclasses
+import errno
 import os
+import unicodedata
 from collections.abc import Callable, Iterable
 from pathlib import Path
 
@@ -22,9 +25,15 @@ _MEASURED_STATUSES = ("measured", "verified")
 Progress = Callable[[int, int], None]
 
 
-def _load(path: Path, schema: str, convert: Callable[[dict, f.ProblemCollector], object]) -> tuple[object, list[Problem]]:
-    """(converted object, []) or (None, every problem in the file)."""
+def _load(path: Path, schema: str, convert: Callable[[dict, f.ProblemCollector], object],
+          root: Path | None = None) -> tuple[object, list[Problem]]:
+    """(converted object, []) or (None, every problem in the file). `root`: the records
+    folder; a file in it that is a link to somewhere outside it is refused unread."""
     shown = str(path)
+    if root is not None:
+        escape = _link_out_of_records(path, root)
+        if escape is not None:
+            return None, [escape]
     text, unreadable = read_text(path)
     if unreadable:
         return None, [Problem(shown, *unreadable[:2], "file", unreadable[2])]
@@ -128,7 +137,8 @@ def parse_build(text: str, catalogue: dict[str, dict[str, model.Part]], shown: s
 
 
 def _rules(root: Path) -> tuple[model.ShopRules | None, list[Problem]]:
-    return _load(root / "shop.yaml", "shop", _convert_rules)
+    """shop.yaml, refused unread when it is a link leading out of the records folder."""
+    return _load(root / "shop.yaml", "shop", _convert_rules, root)
 
 
 def load_rules(records_dir: str | os.PathLike) -> model.ShopRules:
@@ -173,8 +183,8 @@ def _parts_converter(path: Path, taken: dict[str, str]) -> Callable[[dict, f.Pro
 def _catalogue(root: Path) -> tuple[dict[str, dict[str, model.Part]], list[Problem]]:
     catalogue: dict[str, dict[str, model.Part]] = {kind: {} for kind in model.PART_KINDS}
     taken: dict[str, str] = {}
-    problems: list[Problem] = []
-    for path in _yaml_files(root / "parts"):
+    paths, problems = _record_files(root / "parts", root)
+    for path in paths:
         if path.stem not in model.PART_KINDS or path.parent != root / "parts":
             known = ", ".join(f"{kind}.yaml" for kind in model.PART_KINDS)
             problems.append(Problem(str(path), 0, 0, "file", f"not a catalogue file; the catalogue is {known} in {root / 'parts'}"))
@@ -308,54 +318,141 @@ def _check_combination(data: dict, sections: dict, report: f.ProblemCollector) -
 
 
 def _inside(path: Path, folder: Path) -> bool:
-    try:
-        path.resolve().relative_to(folder.resolve())
-    except ValueError:
-        return False
-    return True
+    return Path(os.path.realpath(path)).is_relative_to(os.path.realpath(folder))
 
 
-def _load_build(path: Path, catalogue: dict, in_builds: bool, families: frozenset[str] | None
-                ) -> tuple[model.Build | None, list[Problem]]:
-    """`in_builds`: the file sits under records/builds/, so its id must equal its name."""
-    return _load(path, "build", _build_converter(catalogue, path.stem if in_builds else None, families))
+def _load_build(path: Path, catalogue: dict, in_builds: bool, families: frozenset[str] | None,
+                root: Path | None = None) -> tuple[model.Build | None, list[Problem]]:
+    """`in_builds`: the file sits under records/builds/, so its id must equal its name.
+    `families`: see known_families. `root`: the records folder, when `path` was not listed by
+    _record_files (which checks the links it meets) and a link out of it must be refused."""
+    return _load(path, "build", _build_converter(catalogue, path.stem if in_builds else None,
+                                                 families), root)
 
 
 def load_build_file(path: str | os.PathLike, shop: model.Shop) -> model.Build:
     """One build or proposal (it may live outside records/); InputError with every problem."""
     path = Path(path)
-    build, problems = _load_build(path, shop.parts, _inside(path, Path(shop.root) / "builds"),
-                                  known_families(shop.parts, shop.rules))
+    root = Path(shop.root)
+    build, problems = _load_build(path, shop.parts, _inside(path, root / "builds"),
+                                  known_families(shop.parts, shop.rules), root)
     if problems:
         raise InputError(problems)
     return build
 
 
-def _yaml_files(folder: Path) -> list[Path]:
-    """YAML files under `folder` (subfolders too, hidden names skipped, links not followed), sorted."""
-    found = []
-    for directory, subfolders, names in os.walk(folder):
-        subfolders[:] = sorted(name for name in subfolders if not name.startswith("."))
-        found += [Path(directory, name) for name in sorted(names)
-                  if name.endswith(YAML_SUFFIXES) and not name.startswith(".")]
-    return found
+def _link_out_of_records(path: Path, root: Path) -> Problem | None:
+    """A problem when `path` sits in the records folder but is (or passes through) a link to
+    somewhere outside it; found from the link itself, before the target is read. It costs a
+    realpath (an lstat per component): the walker asks only about the links it meets."""
+    where = Path(os.path.abspath(path))
+    real_root = Path(os.path.realpath(root))
+    if not (where.is_relative_to(os.path.abspath(root)) or where.is_relative_to(real_root)):
+        return None  # a file outside records/: a proposal, read where it is
+    real = Path(os.path.realpath(path))
+    if real.is_relative_to(real_root):
+        return None
+    return Problem(str(path), 0, 0, "file", f"a link to {real}, outside the records folder "
+                   f"{real_root}; not read (keep records inside the records folder)")
 
 
-def _duplicate_ids(builds_dir: Path, checked: Iterable[Path], listing: list[Path] | None = None) -> list[Problem]:
-    """Build files in `checked` whose file name (= id) another file under builds_dir also has.
+def _looks_like_a_record(name: str) -> bool:
+    """A name that would be read as a record but for its case, a leading dot or spaces
+    (or other invisible characters) around it: `HW-0102.YAML`, `.HW-0102.yaml`, `HW-0102.yaml `."""
+    trimmed = "".join(ch for ch in name if unicodedata.category(ch)[0] not in "ZC").strip(".")
+    return trimmed.lower().endswith(YAML_SUFFIXES)
 
-    `listing` is _yaml_files(builds_dir) when the caller already has it.
-    """
+
+def _is_read(name: str) -> bool:
+    return name.endswith(YAML_SUFFIXES) and not name.startswith(".")
+
+
+def _record_files(folder: Path, root: Path) -> tuple[list[Path], list[Problem]]:
+    """YAML files under `folder`, subfolders too, sorted, and a problem for everything there
+    that looks like a record but would not be read: a folder that cannot be listed, a folder
+    that is a link (not followed), a hidden folder holding records, a wrongly named file.
+    A missing `folder` holds nothing."""
+    found: list[Path] = []
+    escape = _link_out_of_records(folder, root)
+    if escape is not None:
+        return [], [dataclasses.replace(escape, field="folder")]
+    problems: list[Problem] = []
+    pending = [folder]
+    while pending:
+        directory = pending.pop()
+        try:
+            with os.scandir(directory) as listing:
+                entries = sorted(listing, key=lambda entry: entry.name)
+        except OSError as error:
+            if not (directory == folder and error.errno == errno.ENOENT):
+                problems.append(_folder_problem(directory, error))
+            continue
+        subfolders = []
+        for entry in entries:
+            path = Path(entry.path)
+            name = entry.name
+            if entry.is_dir(follow_symlinks=False):
+                if not name.startswith("."):
+                    subfolders.append(path)
+                elif any(_looks_like_a_record(inner) for _, _, names in os.walk(path) for inner in names):
+                    problems.append(Problem(str(path), 0, 0, "folder", "a hidden folder holding record "
+                                            "files, which are never read; remove the leading dot or "
+                                            f"move the files out of {folder}"))
+            elif entry.is_symlink() and _points_at_folder(entry):
+                problems.append(Problem(str(path), 0, 0, "folder", f"a link to the folder "
+                                        f"{os.path.realpath(path)}; links to folders are not "
+                                        "followed: move the folder here"))
+            elif _is_read(name):
+                escape = _link_out_of_records(path, root) if entry.is_symlink() else None
+                if escape is None:
+                    found.append(path)
+                else:
+                    problems.append(escape)
+            elif _looks_like_a_record(name):
+                problems.append(Problem(str(path), 0, 0, "file", f"not read: {name!r} is not named "
+                                        "like a record; name it <id>.yaml (lower-case .yaml or "
+                                        ".yml, no leading dot, no spaces around it)"))
+        pending.extend(reversed(subfolders))
+    return found, problems
+
+
+def _points_at_folder(entry: os.DirEntry) -> bool:
+    try:
+        return entry.is_dir()
+    except OSError:  # a loop of links: said when the file is read
+        return False
+
+
+def _folder_problem(directory: Path, error: OSError) -> Problem:
+    if error.errno == errno.ELOOP:
+        why = "a loop of symbolic links"
+    elif error.errno in (errno.ENOTDIR, errno.ENOENT):
+        why = "not a folder"
+    else:
+        why = error.strerror or str(error)
+    return Problem(str(directory), 0, 0, "folder", f"cannot read this folder ({why}); "
+                   "the records in it would be missed")
+
+
+def _duplicate_ids(builds_dir: Path, checked: Iterable[Path], listing: list[Path]) -> list[Problem]:
+    """Build files in `checked` whose file name (= id) an earlier file under builds_dir also
+    has, the same file reached again through a link included (reported once, at the second)."""
     first: dict[str, Path] = {}
-    for path in _yaml_files(builds_dir) if listing is None else listing:
+    for path in listing:
         first.setdefault(path.stem, path)
     problems = []
     for path in checked:
         original = first.get(path.stem)
-        if original is not None and original != path and original.resolve() != path.resolve():
+        if original is not None and original != path:
             line, col = locate(path, "id")
-            problems.append(Problem(str(path), line, col, "id", f"build id {path.stem} is already used by "
-                                    f"{original}; ids must be unique across {builds_dir}"))
+            if os.path.realpath(original) != os.path.realpath(path):
+                how = (f"build id {path.stem} is already used by {original}; ids must be unique "
+                       f"across {builds_dir}")
+            elif path.is_symlink():
+                how = f"this file is a link to {original}, so the same build would be read twice; remove the link"
+            else:
+                how = f"{original} is a link to this file, so the same build would be read twice; remove the link"
+            problems.append(Problem(str(path), line, col, "id", how))
     return problems
 
 
@@ -382,7 +479,7 @@ def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress |
             inside_builds.append(path)
         if progress is not None:
             progress(done, len(paths))
-    listing = paths if in_builds is None else None
+    listing = paths if in_builds is None else _record_files(root / "builds", root)[0]
     return builds, problems + _duplicate_ids(root / "builds", inside_builds, listing)
 
 
@@ -390,9 +487,10 @@ def _whole(root: Path, progress: Progress | None) -> tuple[model.ShopRules | Non
     """Rules, catalogue, every build under root/builds/** and every problem in them."""
     rules, problems = _rules(root)
     catalogue, found = _catalogue(root)
-    builds, found_in_builds = _builds(root, catalogue, _yaml_files(root / "builds"), progress,
+    listing, unread = _record_files(root / "builds", root)
+    builds, found_in_builds = _builds(root, catalogue, listing, progress,
                                       families=known_families(catalogue, rules))
-    return rules, catalogue, builds, problems + found + found_in_builds
+    return rules, catalogue, builds, problems + found + unread + found_in_builds
 
 
 def load_shop(records_dir: str | os.PathLike, progress: Progress | None = None) -> model.Shop:
@@ -437,13 +535,19 @@ def _given(root: Path, paths: list[Path], progress: Progress | None
     problems: list[Problem] = []
     for given in paths:
         if given.is_dir():
-            targets += _yaml_files(given)
-        elif given.exists():
-            targets.append(given)
+            listing, unread = _record_files(given, root)
+            targets += listing
+            problems += unread
+        elif given.exists() or given.is_symlink():  # a broken link or a loop: said when read
+            escape = _link_out_of_records(given, root)
+            if escape is None:
+                targets.append(given)
+            else:
+                problems.append(escape)
         else:
             problems.append(Problem(str(given), 0, 0, "file", "no such file or folder"))
-    real = {path: path.resolve() for path in targets}  # each path resolved once
-    shop_file, parts_dir, builds_dir = ((root / name).resolve() for name in ("shop.yaml", "parts", "builds"))
+    real = {path: Path(os.path.realpath(path)) for path in targets}  # each resolved once
+    shop_file, parts_dir, builds_dir = (Path(os.path.realpath(root / name)) for name in ("shop.yaml", "parts", "builds"))
     rules, found = _rules(root)
     if shop_file in real.values():
         problems += found

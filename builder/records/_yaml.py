@@ -7,6 +7,7 @@ value), checks aliases and duplicates, and returns located problems instead of r
 from __future__ import annotations
 
 import errno
+import functools
 import re
 import stat
 from dataclasses import dataclass, field
@@ -17,18 +18,18 @@ import yaml
 from builder.presentation import encoding_message
 
 MAX_BYTES = 256 * 1024  # a record is a few kilobytes
-MAX_FLOW_DEPTH = 64  # [ and { nesting; libyaml recurses in C and can crash on deep input
+MAX_DEPTH = 64  # collections inside collections; libyaml's composer recurses in C and crashes on deep input
 MAX_ALIASES = 64
 MAX_NODES = 10_000  # nodes after expanding aliases
 
 Where = tuple  # a location in a document: keys and list indices, e.g. ("pedal", "layout", "pad", 0)
 
-_BRACKETS = re.compile(r"[\[\]{}]")
-_COMPACT_RUN = re.compile(r"(?:[-?][ \t]+){32}")  # "- - - - ..." nests one level per marker
-# Screens every file before _COMPACT_RUN: a run holds a "-" marker pair unless all its markers
-# are "?", and a literal first character makes the search fast.
-_DASH_PAIR = re.compile(r"-[ \t]+[-?][ \t]")
-_MISSING = (errno.ENOENT, errno.ENOTDIR, errno.ELOOP)  # what Path.exists() calls absent
+# A sound upper bound on nesting, cheap enough for every file: flow openers plus two levels
+# per column where a block collection can start (see _depth_bound). Only a file whose bound
+# passes MAX_DEPTH has its parser events walked.
+_LINE_PREFIX = re.compile(r"\n[ \t]*(?:(?:---|[-?:]|[&!][^ \t\n]*)[ \t]+)*")  # on "\n" + text
+_PREFIX_TOKEN = re.compile(r"(?:---|[-?:]|[&!][^ \t\n]*)[ \t]+")
+_MISSING = (errno.ENOENT, errno.ENOTDIR)  # what Path.exists() calls absent (a loop is said apart)
 _TIMESTAMP = "tag:yaml.org,2002:timestamp"
 _MERGE = "tag:yaml.org,2002:merge"
 
@@ -58,10 +59,31 @@ Loader.yaml_implicit_resolvers = {
 }
 _SCALARS = yaml.constructor.SafeConstructor()
 _STR = "tag:yaml.org,2002:str"
+_INT = "tag:yaml.org,2002:int"
+
+
+class TypedInt(int):
+    """An integer read from a plain YAML scalar, keeping the text as typed in `typed`.
+
+    YAML 1.1 reads `0712` as octal 458, `1:30` as 90 (base 60), `0x1F` as 31 and `1_000`
+    as 1000; a text field (a family code, a technician's initials) wants `0712`, so
+    builder.records.convert.text() takes `typed`. Numbers stay numbers everywhere else.
+    """
+
+    typed: str
+
+
+def _typed_int(node) -> TypedInt:
+    number = TypedInt(_SCALARS.construct_yaml_int(node))
+    number.typed = node.value
+    return number
+
+
+Loader.add_constructor(_INT, lambda loader, node: _typed_int(node))
 _BUILD_SCALAR = {
     "tag:yaml.org,2002:null": lambda node: None,
     "tag:yaml.org,2002:bool": _SCALARS.construct_yaml_bool,
-    "tag:yaml.org,2002:int": _SCALARS.construct_yaml_int,
+    _INT: _typed_int,
     "tag:yaml.org,2002:float": _SCALARS.construct_yaml_float,
 }
 
@@ -121,6 +143,9 @@ def read_text(path: Path) -> tuple[str | None, tuple[int, int, str] | None]:
     except OSError as error:
         if error.errno in _MISSING:
             return None, (0, 0, "no such file")
+        if error.errno == errno.ELOOP:
+            return None, (0, 0, "a loop of symbolic links (a link that leads back to itself); "
+                                "point it at a file")
         return None, (0, 0, f"cannot read: {error.strerror or error}")
     if len(raw) > MAX_BYTES:
         return None, (0, 0, f"file is over {MAX_BYTES} bytes; records are limited to {MAX_BYTES} bytes")
@@ -157,19 +182,72 @@ def _wide_encoding(raw: bytes) -> str | None:
     return None
 
 
+def _depth_bound(text: str) -> int:
+    """An upper bound on how deeply collections nest in `text`, from characters alone.
+
+    Flow collections open with `[` or `{` (every one counted, even in strings and comments).
+    A block collection nested in another starts at a greater column, except a sequence
+    written level with its mapping's keys (YAML 1.1, 7.2 and 7.3), so block nesting is at most
+    two levels per column where a block collection can start: a line's indentation, or the
+    column after each compact indicator (`- `, `? `, `: `), anchor or tag that opens the line.
+    Lines break at \\n, \\r, NEL, LS and PS alike (YAML 1.1, 5.4).
+    tests/test_fuzz.py checks the bound against the parser's own events.
+    """
+    flow = text.count("[") + text.count("{")
+    if any(mark in text for mark in _OTHER_BREAKS):
+        for mark in _OTHER_BREAKS:
+            text = text.replace(mark, "\n")
+    spare = (MAX_DEPTH - flow) // 2
+    if spare > 0 and "&" not in text and "!" not in text and not _long_prefix(spare).search("\n" + text):
+        # Every line's prefix (indentation and indicators) is shorter than `spare`, so block
+        # collections start in at most `spare` columns: one substring search, no set of prefixes.
+        return flow + 2 * spare
+    columns = set()
+    for found in set(_LINE_PREFIX.findall("\n" + text)):  # a literal "\n" first: faster than ^ and re.M
+        prefix = found[1:]
+        indent = len(prefix) - len(prefix.lstrip(" \t"))
+        columns.add(indent)
+        columns.update(token.end() for token in _PREFIX_TOKEN.finditer(prefix, indent))
+    return flow + 2 * len(columns)
+
+
+_OTHER_BREAKS = ("\r", "\x85", "\u2028", "\u2029")
+
+
+@functools.lru_cache(maxsize=None)
+def _long_prefix(length: int) -> re.Pattern:
+    """A line whose first `length` characters could all belong to an indentation-and-indicator
+    prefix (anchors and tags excluded: the caller has none)."""
+    return re.compile(r"\n[ \t?:-]{%d}" % length)
+
+
+_OPEN = (yaml.SequenceStartEvent, yaml.MappingStartEvent)
+_CLOSE = (yaml.SequenceEndEvent, yaml.MappingEndEvent)
+
+
 def _nesting_problem(text: str) -> tuple[int, int, str] | None:
-    if "?" in text or _DASH_PAIR.search(text):
-        run = _COMPACT_RUN.search(text)
-        if run:
-            return (*_line_col(text, run.start()), "nesting is too deep")
-    if text.count("[") + text.count("{") <= MAX_FLOW_DEPTH:
+    """Where collections first nest deeper than MAX_DEPTH, measured on libyaml's own parser
+    events (its event parser is iterative; the composer that builds nodes recurses)."""
+    if _depth_bound(text) <= MAX_DEPTH:
         return None
+    loader = Loader(text)
     depth = 0
-    for bracket in _BRACKETS.finditer(text):
-        depth += 1 if bracket.group() in "[{" else -1
-        if depth > MAX_FLOW_DEPTH:
-            return (*_line_col(text, bracket.start()), f"nesting is deeper than {MAX_FLOW_DEPTH} levels")
-    return None
+    try:
+        while True:
+            event = loader.get_event()
+            if event is None:
+                return None
+            if isinstance(event, _OPEN):
+                depth += 1
+                if depth > MAX_DEPTH:
+                    mark = event.start_mark
+                    return mark.line + 1, mark.column + 1, f"nesting is deeper than {MAX_DEPTH} levels"
+            elif isinstance(event, _CLOSE):
+                depth -= 1
+    except yaml.YAMLError:
+        return None  # the composer stops at the same error, no deeper than here
+    finally:
+        loader.dispose()
 
 
 def _char_at(text: str, line: int, column: int) -> str:
@@ -245,8 +323,10 @@ def _mark(node) -> tuple[int, int]:
 
 
 def _graph_problems(root) -> list[tuple[Where, int, int, str]]:
-    """Aliases beyond MAX_ALIASES, expansion beyond MAX_NODES, or a node containing itself."""
+    """Aliases beyond MAX_ALIASES, expansion beyond MAX_NODES, nesting through aliases deeper
+    than MAX_DEPTH (each alias can add a nested value's depth), or a node containing itself."""
     sizes: dict[int, int] = {}
+    depths: dict[int, int] = {}
     open_nodes: set[int] = set()
     aliases = 0
     stack = [(root, False)]
@@ -255,7 +335,11 @@ def _graph_problems(root) -> list[tuple[Where, int, int, str]]:
         key = id(node)
         if finished:
             open_nodes.discard(key)
-            sizes[key] = 1 + sum(sizes[id(child)] for child in _children(node))
+            children = _children(node)
+            sizes[key] = 1 + sum(sizes[id(child)] for child in children)
+            depths[key] = (1 + max(depths[id(child)] for child in children)) if children else 0
+            if depths[key] > MAX_DEPTH:
+                return [((), *_mark(node), f"nesting is deeper than {MAX_DEPTH} levels through aliases")]
             if sizes[key] > MAX_NODES:
                 how = " through anchors and aliases" if aliases else ""
                 return [((), *_mark(node), f"expands to more than {MAX_NODES} values{how}; a record holds far fewer")]

@@ -166,8 +166,9 @@ def range_key(schema: str, where: tuple, data: object) -> str | None:
 
 
 def text(value: object) -> str | None:
-    """Free text; an unquoted YAML number such as a family code 2002 becomes "2002"."""
-    return None if value is None else str(value)
+    """Free text; an unquoted YAML number is kept as typed: `0712` stays "0712" (not the
+    octal 458), `1:30` stays "1:30" (not 90)."""
+    return None if value is None else getattr(value, "typed", None) or str(value)
 
 
 # What a template leaves for a person to replace: XX, TODO, TBD, ?, ..., "describe the car
