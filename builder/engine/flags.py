@@ -6,22 +6,33 @@ from __future__ import annotations
 
 from builder.engine.linkage import LeverPedal, SliderCrankPedal
 from builder.engine.result import Figure, Flag, Sizing
-from builder.engine.travel import travel_margin
+from builder.engine.travel import finger_travel, travel_margin
 from builder.model import Build, ShopRules
 
 PAD_TRAVEL_TOLERANCE = 0.05  # layout swing vs recorded pad travel (common practice, no source)
 EFFORT_CODES = ("effort-high", "effort-low")
+PRESSURE_CODES = ("pressure-over-rating",)
 
 
-def travel_flags(s: Sizing, rules: ShopRules) -> list[Flag]:
-    """travel-short, slave-overtravel, master-bottoms-early, release-late,
-    master-volume-short."""
+def travel_flags(s: Sizing, rules: ShopRules, build: Build) -> list[Flag]:
+    """travel-short, travel-margin-high, over-stroke, slave-overtravel,
+    master-bottoms-early, release-late, master-volume-short."""
     flags = margin_flags(s.bearing_travel, s.needed_bearing_travel, rules)
+    if rules.max_travel_margin is not None and s.margin > rules.max_travel_margin:
+        flags.append(Flag("travel-margin-high", "warn", (
+            Figure("margin", s.margin, "fraction"),
+            Figure("limit", rules.max_travel_margin, "fraction"))))
+    limit = build.clutch.max_release_travel
+    if limit is not None and finger_travel(s.bearing_travel, s.clearance) > limit:
+        flags.append(Flag("over-stroke", "fail", (
+            Figure("travel", finger_travel(s.bearing_travel, s.clearance), "length"),
+            Figure("limit", limit, "length"))))
     if s.master_swept_volume < s.needed_volume:
         flags.append(Flag("master-volume-short", "fail", (
             Figure("swept", s.master_swept_volume, "volume"),
             Figure("needed", s.needed_volume, "volume"),
-            Figure("losses", s.losses_volume, "volume"))))
+            Figure("losses", s.losses_volume, "volume"),
+            Figure("dead_stroke", s.dead_stroke, "length"))))
     if s.slave_overtravel:
         flags.append(Flag("slave-overtravel", "fail",
                           (Figure("slave_stroke", s.slave_travel, "length"),)))
@@ -32,7 +43,8 @@ def travel_flags(s: Sizing, rules: ShopRules) -> list[Flag]:
         flags.append(Flag("release-late", "warn", (
             Figure("release_point", s.release_point, "fraction"),
             Figure("pad_travel", s.pad_travel_to_release or 0.0, "length"),
-            Figure("latest", rules.latest_release_point, "fraction"))))
+            Figure("latest", rules.latest_release_point, "fraction"),
+            Figure("usable", s.usable_pad_travel or 0.0, "length"))))
     return flags
 
 
@@ -69,15 +81,23 @@ def effort_band_flags(effort: float, rules: ShopRules, basis: str = "computed") 
     return []
 
 
-def pressure_flags(s: Sizing, build: Build) -> list[Flag]:
-    """pressure-over-rating for the master and the slave, where a rating is given."""
+def pressure_flags(s: Sizing, build: Build, basis: str = "computed") -> list[Flag]:
+    """pressure-over-rating for the master and the slave, where a rating is given, on the
+    worst-case pressure (static / efficiency)."""
+    return pressure_rating_flags(s.pressure_worst, s.efficiency, build, basis)
+
+
+def pressure_rating_flags(worst: float, efficiency: float, build: Build,
+                          basis: str = "computed") -> list[Flag]:
+    """pressure-over-rating for a worst-case line pressure (Pa) at an efficiency."""
     flags = []
     for name, rating in (("master", build.master.rated_pressure),
                          ("slave", build.slave.rated_pressure)):
-        if rating is not None and s.pressure > rating:
+        if rating is not None and worst > rating:
             flags.append(Flag("pressure-over-rating", "fail", (
-                Figure("pressure", s.pressure, "pressure"),
-                Figure("rating", rating, "pressure")), subject=name))
+                Figure("pressure", worst, "pressure"),
+                Figure("rating", rating, "pressure"),
+                Figure("efficiency", efficiency, "fraction")), subject=name, basis=basis))
     return flags
 
 

@@ -13,11 +13,13 @@ from builder.engine.result import LinkagePose
 from builder.model import PedalLayout
 
 SWEEP_SAMPLES = 96  # layout mode: poses computed through the swing
+_MOST_OFF_AXIS = 0.999  # sin of the largest pushrod angle to the bore axis at rest (~87 deg)
 
 
 class GeometryError(ValueError):
     """A pedal that cannot push a master at all. `reason` is a code of ours:
-    "points-coincide", "pushrod-along-crank" or "no-lengths"; builder.presentation words it."""
+    "points-coincide", "pushrod-along-crank", "axis-across-pushrod" or "no-lengths";
+    builder.presentation words it."""
 
     def __init__(self, reason: str):
         super().__init__(reason)
@@ -28,8 +30,12 @@ def lever_ratio(arm_out: float, arm_in: float) -> float:
     """Mechanical advantage of a lever, R = a / b (force out / force in, inverted travel).
 
     arm_out a: pivot to where the force is applied (pad), m; arm_in b: pivot to where
-    the force is delivered (clevis), m. Source: Shigley's Mechanical Engineering Design,
-    static equilibrium of a lever (moments about the pivot).
+    the force is delivered (clevis), m (both > 0). Valid for small swings with the
+    pushrod square to the arm (layout mode covers the rest). Source: Shigley's Mechanical
+    Engineering Design, static equilibrium of a lever (moments about the pivot).
+
+    >>> lever_ratio(0.28575, 0.0508)
+    5.625
     """
     return arm_out / arm_in
 
@@ -39,6 +45,9 @@ def arc_length(radius: float, angle: float) -> float:
 
     radius r in m, angle theta in rad; returns m. Source: OpenStax College Physics,
     "Rotation Angle and Angular Velocity" (arc length).
+
+    >>> round(arc_length(0.3, 0.5235987756), 6)  # 30 deg on 300 mm
+    0.15708
     """
     return radius * angle
 
@@ -96,11 +105,13 @@ class LeverPedal:
 class SliderCrankPedal:
     """Layout mode: pedal = crank about the pivot, pushrod = coupler, master piston = slider.
 
-    The bore axis runs from the clevis at rest through the pushrod seat; the pushrod
-    length is |seat - clevis| at rest. Rotating the crank by theta (the sense that
-    pushes the master in) moves the seat along the axis by s(theta). Position analysis
-    of the offset slider-crank: Norton, Design of Machinery, x = r cos t + sqrt(l^2 -
-    (r sin t - e)^2), written here in the record's own frame.
+    The bore axis runs through the pushrod seat, along layout.bore_axis when the record
+    gives it, else from the clevis at rest through the seat; the pushrod length is
+    |seat - clevis| at rest. Rotating the crank by theta (the sense that pushes the master
+    in) moves the seat along the axis by s(theta) (the pushrod end's travel: free play
+    and dead stroke are the caller's). Position analysis of the offset slider-crank:
+    Norton, Design of Machinery, x = r cos t + sqrt(l^2 - (r sin t - e)^2), written here
+    in the record's own frame. Valid until the linkage goes over centre (binds).
     """
 
     mode = "layout"
@@ -116,13 +127,24 @@ class SliderCrankPedal:
         crank_radius = math.hypot(*crank)
         if self.rod <= 0.0 or crank_radius <= 0.0 or self.pad_radius <= 0.0:
             raise GeometryError("points-coincide")
-        self.axis = ((sx - cx) / self.rod, (sy - cy) / self.rod)
-        rate_ccw = -crank[1] * self.axis[0] + crank[0] * self.axis[1]
+        rod_dir = ((sx - cx) / self.rod, (sy - cy) / self.rod)
+        if layout.bore_axis is None:
+            self.axis = rod_dir
+        else:  # the given direction, turned to point from the clevis side into the master
+            ux, uy = math.cos(layout.bore_axis), math.sin(layout.bore_axis)
+            flip = -1.0 if ux * rod_dir[0] + uy * rod_dir[1] < 0.0 else 1.0
+            self.axis = (flip * ux, flip * uy)
+        # h0 = u x (clevis - seat): the clevis's offset from the bore axis at rest
+        self._offset0 = self.axis[0] * (cy - sy) - self.axis[1] * (cx - sx)
+        if abs(self._offset0) >= self.rod * _MOST_OFF_AXIS:
+            raise GeometryError("axis-across-pushrod")
+        self._rest_along = math.sqrt(self.rod * self.rod - self._offset0 * self._offset0)
+        self._along0 = crank[0] * self.axis[0] + crank[1] * self.axis[1]  # k0 . u
+        self._across0 = self.axis[0] * crank[1] - self.axis[1] * crank[0]  # u x k0
+        rate_ccw = -self._across0 - self._offset0 * self._along0 / self._rest_along
         if abs(rate_ccw) < 1e-6 * crank_radius:
             raise GeometryError("pushrod-along-crank")
         self.sense = 1.0 if rate_ccw > 0.0 else -1.0
-        self._along0 = crank[0] * self.axis[0] + crank[1] * self.axis[1]  # k0 . u
-        self._across0 = self.axis[0] * crank[1] - self.axis[1] * crank[0]  # u x k0
         self.stop_angle = layout.rotation_to_stop
         self.pad_travel_at_stop = arc_length(self.pad_radius, self.stop_angle)
         self._build_table()
@@ -136,20 +158,22 @@ class SliderCrankPedal:
     def states(self, thetas) -> list[tuple[float, float, float] | None]:
         """state() at each crank angle theta (rad), in one loop.
 
-        Seat on the axis at x with |x u - d| = l, d = clevis displacement:
-        x = a + sqrt(l^2 - h^2), a = d.u, h = u x d; s = x - l;
-        ds/dtheta = a' - h h' / sqrt(l^2 - h^2). Norton, Design of Machinery,
-        slider-crank position and velocity analysis. The crank k0 turned by t = sense *
-        theta gives, with a0 = k0.u and b0 = u x k0 (rotation of a vector):
-        a = a0 (cos t - 1) - b0 sin t, h = b0 (cos t - 1) + a0 sin t,
+        Seat on the axis at x (from its rest place) with |x u - w| = l, w = clevis - seat
+        at rest + d, d = clevis displacement: x = a + sqrt(l^2 - h^2) - sqrt(l^2 - h0^2),
+        a = d.u, h = h0 + u x d, h0 = u x (clevis - seat) at rest (0 when the axis runs
+        through the clevis); s = x; ds/dtheta = a' - h h' / sqrt(l^2 - h^2). Norton,
+        Design of Machinery, slider-crank position and velocity analysis. The crank k0
+        turned by t = sense * theta gives, with a0 = k0.u and b0 = u x k0 (rotation of a
+        vector): a = a0 (cos t - 1) - b0 sin t, h = h0 + b0 (cos t - 1) + a0 sin t,
         a' = -sense (a0 sin t + b0 cos t), h' = sense (a0 cos t - b0 sin t).
         """
         sense, rod, a0, b0 = self.sense, self.rod, self._along0, self._across0
+        h0, rest = self._offset0, self._rest_along
         cos, sin, sqrt = math.cos, math.sin, math.sqrt
         found = []
         for theta in thetas:
             cos_t, sin_t = cos(theta), sense * sin(theta)
-            offset = b0 * (cos_t - 1.0) + a0 * sin_t
+            offset = h0 + b0 * (cos_t - 1.0) + a0 * sin_t
             room = rod * rod - offset * offset
             if room <= 0.0:
                 found.append(None)
@@ -157,7 +181,7 @@ class SliderCrankPedal:
             root = sqrt(room)
             along = a0 * (cos_t - 1.0) - b0 * sin_t
             rate = -sense * (a0 * sin_t + b0 * cos_t) - offset * sense * (a0 * cos_t - b0 * sin_t) / root
-            found.append((along + root - rod, rate, offset))
+            found.append((along + root - rest, rate, offset))
         return found
 
     def _pushes(self, theta: float) -> bool:
@@ -230,14 +254,13 @@ class SliderCrankPedal:
         lay = self.layout
         turn = self.sense * theta
         stroke = self.state(theta)[0]
-        seat_from_clevis = self.rod + stroke
         return LinkagePose(
             pivot=lay.pivot,
             pad=_rotate(lay.pad, lay.pivot, turn),
             clevis=_rotate(lay.clevis, lay.pivot, turn),
             pushrod_seat=(
-                lay.clevis[0] + seat_from_clevis * self.axis[0],
-                lay.clevis[1] + seat_from_clevis * self.axis[1],
+                lay.pushrod_seat[0] + stroke * self.axis[0],
+                lay.pushrod_seat[1] + stroke * self.axis[1],
             ),
         )
 
