@@ -159,6 +159,7 @@ def calibration(ctx: Context) -> None:
 
     analysis = _run(ctx.analysis)
     echo_safe(reporting.render(reporting.calibration_rows(analysis), "table"), nl=False)
+    click.echo(reporting.coverage_note(analysis))
 
 
 @main.command()

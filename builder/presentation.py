@@ -26,7 +26,7 @@ from builder.units import DIMENSIONS, SEEDED_UNITS
 
 if TYPE_CHECKING:
     from builder.engine.result import Flag
-    from builder.history.calibration import Basis, Prediction
+    from builder.history.calibration import Basis, GroupCalibration, Prediction
     from builder.history.similar import Difference
     from builder.units import QuantityError
 
@@ -42,6 +42,7 @@ DISPLAY: dict[str, dict[str, tuple[str, int]]] = {
     "volume": {"imperial": ("in^3", 3), "metric": ("mL", 2)},
     "angle": {"imperial": ("deg", 1), "metric": ("deg", 1)},
     "hose_expansion": {"imperial": ("mL/m/MPa", 3), "metric": ("mL/m/MPa", 3)},
+    "volume_per_length": {"imperial": ("cc/ft", 3), "metric": ("mL/m", 3)},
     "fraction": {"imperial": ("%", 1), "metric": ("%", 1)},
 }
 # Chart axes: one unit per dimension and system (plain numbers along an axis).
@@ -191,6 +192,8 @@ GEOMETRY_SENTENCES = {
     "pushrod-along-crank": "the pushrod lies along the line from pivot to clevis at rest, so "
                            "turning the pedal cannot push the master",
     "no-lengths": "the pedal needs pivot_to_pad and pivot_to_clevis, or a layout",
+    "axis-across-pushrod": "the bore axis runs nearly square to the pushrod at rest, so the "
+                           "pushrod cannot push along it; check bore_axis",
 }
 
 
@@ -206,6 +209,7 @@ _BASIS_WHICH = {
     "after_losses": "After the shop's measured travel losses, bearing travel",
 }
 _EFFORT_WHICH = {"computed": "Predicted", "calibrated": "Calibrated"}
+_EFFICIENCY_WHICH = {"computed": "the shop's default", "calibrated": "the calibrated"}
 
 
 def flag_sentence(flag: Flag, primary: str = "imperial") -> str:
@@ -221,8 +225,17 @@ def flag_sentence(flag: Flag, primary: str = "imperial") -> str:
         return (f"{which} {v['bearing']} is only {_signed(flag, 'margin')} over the "
                 f"{v['needed']} needed; the shop asks for {v['minimum']}.")
     if code == "master-volume-short":
-        return (f"The master's full stroke sweeps {v['swept']} but full release needs "
-                f"{v['needed']}, of which {v['losses']} goes to hose and fluid losses.")
+        return (f"The master's full stroke pushes {v['swept']} once its {v['dead_stroke']} "
+                f"dead stroke has closed the port, but full release needs {v['needed']}, of "
+                f"which {v['losses']} goes to hose and fluid losses.")
+    if code == "travel-margin-high":
+        return (f"Bearing travel is {_signed(flag, 'margin')} over what release needs, past "
+                f"the shop's {v['limit']}; the pedal releases early and pushes the fingers "
+                "further than they need.")
+    if code == "over-stroke":
+        return (f"At the pedal stop the bearing moves {v['travel']} past first contact, beyond "
+                f"the clutch maker's {v['limit']}: the fingers over-stroke. Limit the pedal "
+                "stroke (stop or smaller master) and follow the maker's figure.")
     if code == "slave-overtravel":
         return (f"The master pushes the slave to the end of its {v['slave_stroke']} stroke; "
                 "limit the pedal or master stroke so the slave cannot bottom.")
@@ -231,14 +244,15 @@ def flag_sentence(flag: Flag, primary: str = "imperial") -> str:
                 "the stop there so the master is not the stop.")
     if code == "release-late":
         return (f"Full release comes at {v['release_point']} of the usable pad travel "
-                f"({v['pad_travel']}), later than the shop's {v['latest']}.")
+                f"({v['pad_travel']} of {v['usable']}), later than the shop's {v['latest']}.")
     if code in ("effort-high", "effort-low"):
         side = "above" if code == "effort-high" else "below"
         return (f"{_EFFORT_WHICH[flag.basis]} pedal effort {v['effort']} is {side} the shop's "
                 f"band of {v['low']} to {v['high']}.")
     if code == "pressure-over-rating":
-        return (f"Worst-case line pressure {v['pressure']} is above the {flag.subject}'s rating "
-                f"of {v['rating']}; follow the maker's rating.")
+        return (f"Worst-case line pressure {v['pressure']} (static pressure at "
+                f"{_EFFICIENCY_WHICH[flag.basis]} efficiency {v['efficiency']}) is above the "
+                f"{flag.subject}'s rating of {v['rating']}; follow the maker's rating.")
     if code == "pushrod-off-axis":
         return (f"The pushrod swings {v['angle']} off the master's bore axis, past the shop's "
                 f"{v['limit']}; the side load wears the master bore.")
@@ -279,6 +293,17 @@ def basis_sentence(basis: Basis | None) -> str:
         return f"{estimate}; no interval"
     return (f"{estimate}; {basis.interval_percent} % interval from {basis.interval_count} "
             f"{basis.interval_source} leave-one-out residuals")
+
+
+def coverage_sentence(group: GroupCalibration) -> str:
+    """How often the leave-one-out effort intervals held the measured effort, in words."""
+    if not group.loo_intervals:
+        return (f"Leave-one-out coverage: no build had an effort interval yet (a "
+                f"{group.interval_percent} % interval needs {group.interval_least} other builds "
+                "with a measured effort).")
+    return (f"Leave-one-out coverage: the {group.interval_percent} % effort interval made without each "
+            f"build held its measured effort for {group.loo_covered} of {group.loo_intervals} "
+            f"builds ({percent(group.loo_coverage)}).")
 
 
 def prediction_note(prediction: Prediction) -> str | None:

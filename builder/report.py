@@ -63,9 +63,18 @@ def calibration_rows(analysis: Analysis) -> list[dict]:
             "own_weight_pct": in_unit(group.weight, "%", 1),
             "loo_median_err_pct": in_unit(group.loo_median_abs_err, "%", 1),
             "loo_p90_err_pct": in_unit(group.loo_p90_abs_err, "%", 1),
+            "loo_covered": f"{group.loo_covered}/{group.loo_intervals}",
+            "loo_coverage_pct": in_unit(group.loo_coverage, "%", 1),
         }
         for name, group in groups
     ]
+
+
+def coverage_note(analysis: Analysis) -> str:
+    """One line under the calibration table: how often the effort intervals held."""
+    from builder.presentation import coverage_sentence
+
+    return coverage_sentence(analysis.calibration.shop)
 
 
 def _spreadsheet_safe(value):

@@ -147,6 +147,8 @@ def section_rows(section: object, show: Display, name: str) -> list[list[str]]:
     if layout is not None:
         for point in fields.FIELDS["pedal.layout"].children:
             value = getattr(layout, point.name)
+            if value is None:
+                continue
             if point.kind == fields.POINT:
                 x, y = value
                 rows.append([md(f"layout {point.label} (x, y)"),
@@ -371,7 +373,8 @@ def calibration_page(data: SiteData) -> str:
     groups = [cal.shop] + [cal.families[name] for name in sorted(cal.families)]
     effort_rows = [[md(g.name), str(g.n), pct(g.efficiency),
                     _spread(g.efficiency_median, g.efficiency_mad), md(say.factor(g.weight)),
-                    pct(g.loo_median_abs_err), pct(g.loo_p90_abs_err)] for g in groups]
+                    pct(g.loo_median_abs_err), pct(g.loo_p90_abs_err),
+                    f"{g.loo_covered} of {g.loo_intervals}"] for g in groups]
     travel_rows = [[md(g.name), str(g.n_travel),
                     md(say.factor(g.travel_factor)),
                     _spread(g.travel_factor_median, g.travel_factor_mad, percent=False)]
@@ -385,7 +388,8 @@ def calibration_page(data: SiteData) -> str:
         "divided by the measured effort. The errors show how far a calibrated prediction has "
         "been off, each build predicted from all the others (leave-one-out).",
         table(["Group", "Builds", "Efficiency used", "Own median \u00b1 MAD", "Weight",
-               "Typical error", "90 % of errors below"], effort_rows),
+               "Typical error", "90 % of errors below", "Interval held"], effort_rows),
+        md(say.coverage_sentence(cal.shop)),
         "![Apparent efficiency by gearbox family](charts/calibration-efficiency.svg)",
         "## Slave travel",
         "The travel factor is the measured slave travel over the computed slave travel; below 1 "
@@ -546,7 +550,10 @@ def engineering_table(data: SiteData, build: Build, sizing: Sizing) -> str:
         [f"Travel margin (shop minimum {pct(rules.min_travel_margin)})", pct(sizing.margin, signed=True)],
         [f"Release point (shop latest {pct(rules.latest_release_point)} of pad travel)",
          pct(sizing.release_point)],
-        ["Line pressure at full release", show.q(sizing.pressure, "pressure")
+        ["Pad travel before the master pushes fluid (free play and dead stroke)",
+         show.q(sizing.lost_pad_travel, "length")],
+        ["Line pressure at full release (static / worst case)",
+         f"{show.q(sizing.pressure, 'pressure')} / {show.q(sizing.pressure_worst, 'pressure')}"
          + (f" (lowest rating {show.q(min(ratings), 'pressure')})" if ratings else "")],
         ["Master swept volume", show.q(sizing.master_swept_volume, "volume")],
         ["Volume needed for full release (losses included)", show.q(sizing.needed_volume, "volume")],
