@@ -13,6 +13,7 @@ Imports builder.model (choices) and builder.units (parsing the range texts) only
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import functools
 import json
 import sys
@@ -68,10 +69,11 @@ class Field:
     alternative: Field | None = None
     example: str = "[0.12 in, 380 lbf]"  # a curve: one pair as written
     least_items: int = 2  # a curve: fewest points
+    named: str | None = None  # the key's last part when it holds a dot itself ("DOT 5.1")
 
     @property
     def name(self) -> str:
-        return self.key.rsplit(".", 1)[-1]
+        return self.named or self.key.rsplit(".", 1)[-1]
 
 
     @property
@@ -312,9 +314,10 @@ SHOP_FIELDS = (
        "e.g. 1.7 GPa, or one per fluid kind.", "pressure", "0.1 GPa", "10 GPa", required=True,
        alternative=Field("shop.fluid_bulk_modulus.by_fluid", GROUP, "bulk modulus by fluid",
                          "One bulk modulus per fluid kind.", children=tuple(
-                             _q(f"shop.fluid_bulk_modulus.{fluid}", fluid,
-                                f"Bulk modulus of {fluid} fluid.", "pressure", "0.1 GPa",
-                                "10 GPa", required=True)
+                             dataclasses.replace(
+                                 _q(f"shop.fluid_bulk_modulus.{fluid}", fluid,
+                                    f"Bulk modulus of {fluid} fluid.", "pressure", "0.1 GPa",
+                                    "10 GPa", required=True), named=fluid)
                              for fluid in model.FLUIDS))),
     _q("shop.line_bore", "line bore", "Inner diameter of the line.", "length", "1 mm", "20 mm",
        default="3.2 mm"),

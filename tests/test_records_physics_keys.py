@@ -247,3 +247,19 @@ def test_one_figure_still_works_for_hoses_and_fluids(records):
     rules = load_rules(records)
     assert rules.fluid_bulk_modulus == pytest.approx(1.7e9)
     assert rules.hose_expansion["rubber"] == pytest.approx(0.31e-12)
+
+
+def test_the_schemas_accept_the_new_keys_as_written():
+    # JSON Schema draft 2020-12 through jsonschema's Draft202012Validator, on the texts above
+    # as YAML gives them (editors validate records with these schemas).
+    import json
+
+    import yaml
+    from jsonschema import Draft202012Validator
+
+    schema_dir = Path(__file__).resolve().parents[1] / "schema"
+    for name, text in (("shop", SHOP), ("build", BUILD), ("build", CONCENTRIC),
+                       *(("parts", t) for t in PARTS.values())):
+        validator = Draft202012Validator(json.loads((schema_dir / f"{name}.schema.json").read_text()))
+        errors = [error.message for error in validator.iter_errors(yaml.safe_load(text))]
+        assert not errors, (name, errors)

@@ -325,7 +325,7 @@ def points_or_quantity(value: object, key: str, report: ProblemCollector, where:
             return None
         return _load_curve(value, report, where, alternative.key)
     if isinstance(value, dict) and alternative.kind != CURVE:
-        names = [child.key[len(key) + 1:] for child in alternative.children]  # "DOT 5.1"
+        names = [child.name for child in alternative.children]
         unknown = [name for name in value if name not in names]
         missing = [name for name in names if name not in value]
         if unknown or missing:
