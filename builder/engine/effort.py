@@ -116,7 +116,18 @@ def pad_force(load: float, pedal_ratio: float, hydraulic: float, fork: float,
 class Chain:
     """What a pad force needs from the rest of the build (SI): the pedal linkage, the
     load curve (from first contact) or None, the fixed figures of the hydraulics, and
-    the line's losses as a function of pressure."""
+    the line's losses as a function of pressure.
+
+    At a bearing travel x_b: V = A_s R_f x_b + dV(p) (volume balance, OpenStax "Pascal's
+    Principle"), pushrod x_r = V / A_m + d + c, then pad_force there. A 5.6 lever, 2:1
+    fork, 1800 N, areas 283.5 / 380.1 mm^2, lossless, 8.7 mm of bearing travel: pushrod
+    6613.7 / 283.5 + 2.5 = 25.83 mm, pad 144.6 mm, 1800 / (5.6 * 1.3407 * 2) = 119.87 N.
+
+    >>> chain = Chain(LeverPedal(0.28, 0.05, 0.15), None, 1800.0, 0.0012, 0.0, 2.835e-4,
+    ...               3.801e-4, 2.0, 0.0015, 0.001, None, lambda pressure: 0.0)
+    >>> [round(v, 4) for v in chain.at_bearing(0.0087)]
+    [0.1446, 5.6, 119.8698]
+    """
 
     pedal: LeverPedal | SliderCrankPedal
     curve: Curve | None
@@ -133,13 +144,16 @@ class Chain:
 
     @property
     def hydraulic(self) -> float:
+        """R_h = A_s / A_m (hydraulics.hydraulic_ratio)."""
         return self.slave_area / self.master_area
 
     def bare_at(self, pad: float) -> float:
+        """The bare pedal force at a pad travel (N; 0 without one), read between points."""
         return 0.0 if not self.bare else interpolate(self.bare, pad)
 
     def load(self, bearing: float) -> float:
-        """The fluid's share of the bearing load at bearing travel x_b from rest (N)."""
+        """The fluid's share of the bearing load at bearing travel x_b from rest (N): the
+        peak load without a curve, else load_at; less a concentric preload (hydraulic_load)."""
         if self.curve is None:
             return hydraulic_load(self.peak_load, self.preload)
         return hydraulic_load(load_at(self.curve, self.clearance, bearing), self.preload)
@@ -164,7 +178,14 @@ def effort_samples(chain: Chain, reached: float, lost: float
     `reached`: 0, the clearance (twice where the load steps up at contact), every curve
     point, and evenly spaced samples where the force is not piecewise linear in bearing
     travel (a layout's varying ratio, a bare pedal force). `lost`: pad travel before the
-    master pushes fluid, m.
+    master pushes fluid, m. Sources as pad_force.
+
+    >>> chain = Chain(LeverPedal(0.28, 0.05, 0.15), ((0.0, 0.0), (0.003, 1700.0),
+    ...               (0.005, 1850.0)), 1850.0, 0.0012, 0.0, 2.835e-4, 3.801e-4, 2.0, 0.0,
+    ...               0.0, None, lambda pressure: 0.0)
+    >>> [(round(pad * 1e3, 1), round(force, 1)) for pad, force, _, _ in
+    ...  effort_samples(chain, 0.0087, 0.0)][2:]
+    [(18.0, 0.0), (63.1, 113.2), (93.1, 123.2), (130.6, 123.2)]
     """
     pedal = chain.pedal
     samples = []
@@ -198,7 +219,14 @@ def peak_effort(chain: Chain, samples: list[tuple[float, float, float, float]]
     neighbours where the force is smooth between samples (a layout's ratio or a bare
     pedal force; Kiefer's golden-section search for the maximum of a unimodal function,
     as in Press et al., Numerical Recipes, section 10.2). Where the force is piecewise
-    linear in bearing travel the peak is at a sample (a curve point)."""
+    linear in bearing travel the peak is at a sample (a curve point).
+
+    >>> chain = Chain(LeverPedal(0.28, 0.05, 0.15), ((0.0, 0.0), (0.003, 1700.0),
+    ...               (0.005, 1850.0)), 1850.0, 0.0012, 0.0, 2.835e-4, 3.801e-4, 2.0, 0.0,
+    ...               0.0, None, lambda pressure: 0.0)
+    >>> [round(v, 4) for v in peak_effort(chain, effort_samples(chain, 0.0087, 0.0))]
+    [123.1995, 0.0931, 5.6]
+    """
     best = max(range(len(samples)), key=lambda i: samples[i][1])
     force, pad, bearing, ratio = samples[best][1], samples[best][0], samples[best][2], samples[best][3]
     if not (chain.pedal.mode == "layout" or chain.bare) or bearing <= 0.0:
@@ -207,7 +235,7 @@ def peak_effort(chain: Chain, samples: list[tuple[float, float, float, float]]
     i = travels.index(bearing)
     low, high = travels[max(i - 1, 0)], travels[min(i + 1, len(travels) - 1)]
 
-    def f(x: float) -> float:
+    def f(x: float) -> float:  # the ideal pad force at bearing travel x
         return chain.at_bearing(x)[2]
 
     a, b = low + (1.0 - _GOLDEN) * (high - low), low + _GOLDEN * (high - low)
@@ -234,5 +262,8 @@ def effort_curve(samples: list[tuple[float, float, float, float]], efficiency: f
 
     The samples of effort_samples, each divided by the efficiency eta (predicted_effort),
     so the curve's peak is the headline predicted effort. Sources as pad_force.
+
+    >>> effort_curve([(0.0, 0.0, 0.0, 5.6), (0.1, 100.0, 0.006, 5.6)], 0.8)
+    ((0.0, 0.0), (0.1, 125.0))
     """
     return tuple((pad, predicted_effort(force, efficiency)) for pad, force, _, _ in samples)

@@ -51,7 +51,15 @@ def travel_flags(s: Sizing, rules: ShopRules, build: Build) -> list[Flag]:
 def margin_flags(bearing: float, needed: float, rules: ShopRules,
                  basis: str = "computed") -> list[Flag]:
     """travel-short for a bearing travel (m) against the travel needed (m): fail when it is
-    short, warn when the margin is under the shop's minimum."""
+    short, warn when the margin (travel.travel_margin) is under the shop's minimum.
+
+    >>> from types import SimpleNamespace
+    >>> rules = SimpleNamespace(min_travel_margin=0.10)
+    >>> [(f.code, f.severity) for f in margin_flags(0.0095, 0.009, rules)]  # +5.6 %
+    [('travel-short', 'warn')]
+    >>> margin_flags(0.0105, 0.009, rules), margin_flags(0.0085, 0.009, rules)[0].severity
+    ([], 'fail')
+    """
     margin = travel_margin(bearing, needed)
     figures = (Figure("bearing", bearing, "length"), Figure("needed", needed, "length"),
                Figure("margin", margin, "fraction"))
@@ -70,7 +78,13 @@ def effort_flags(s: Sizing, rules: ShopRules) -> list[Flag]:
 
 
 def effort_band_flags(effort: float, rules: ShopRules, basis: str = "computed") -> list[Flag]:
-    """effort-high, effort-low for one pad effort (N)."""
+    """effort-high, effort-low for one pad effort (N) against the shop's band (N).
+
+    >>> from types import SimpleNamespace
+    >>> rules = SimpleNamespace(effort_band=(66.7, 177.9))
+    >>> [f.code for f in effort_band_flags(190.0, rules)], effort_band_flags(120.0, rules)
+    (['effort-high'], [])
+    """
     low, high = rules.effort_band
     figures = (Figure("effort", effort, "force"), Figure("low", low, "force"),
                Figure("high", high, "force"))
@@ -89,7 +103,15 @@ def pressure_flags(s: Sizing, build: Build, basis: str = "computed") -> list[Fla
 
 def pressure_rating_flags(worst: float, efficiency: float, build: Build,
                           basis: str = "computed") -> list[Flag]:
-    """pressure-over-rating for a worst-case line pressure (Pa) at an efficiency."""
+    """pressure-over-rating for a worst-case line pressure (Pa) at an efficiency, for the
+    master and the slave where the record gives a rating (Pa).
+
+    >>> from types import SimpleNamespace
+    >>> build = SimpleNamespace(master=SimpleNamespace(rated_pressure=8e6),
+    ...                         slave=SimpleNamespace(rated_pressure=6e6))
+    >>> [(f.code, f.subject) for f in pressure_rating_flags(7e6, 0.8, build)]
+    [('pressure-over-rating', 'slave')]
+    """
     flags = []
     for name, rating in (("master", build.master.rated_pressure),
                          ("slave", build.slave.rated_pressure)):

@@ -56,7 +56,14 @@ SCHEMATIC_ROD = 0.45  # pushrod drawn this fraction of pivot-to-pad long in simp
 
 
 class LeverPedal:
-    """Simple mode: constant ratio pivot-to-pad / pivot-to-clevis (Shigley, levers)."""
+    """Simple mode: constant ratio R_p = pivot-to-pad / pivot-to-clevis (Shigley, levers);
+    pad travel x_pad = R_p * s for a pushrod travel s (m). Valid for small swings with the
+    pushrod square to the arm; layout mode covers the rest.
+
+    >>> pedal = LeverPedal(0.28, 0.05, 0.15)
+    >>> [round(v, 6) for v in pedal.at_stroke(0.02)], round(pedal.stroke_at_stop, 6)
+    ([0.112, 5.6], 0.026786)
+    """
 
     mode = "simple"
     binds = False  # a lever has no over-centre point
@@ -74,6 +81,7 @@ class LeverPedal:
         return stroke * self.ratio, self.ratio
 
     def pushrod_angle_max(self, stroke_used: float) -> float | None:
+        """Not modelled for a lever (None)."""
         return None
 
     def sweep(self) -> tuple[tuple[float, float, float, float], ...]:
@@ -112,6 +120,14 @@ class SliderCrankPedal:
     and dead stroke are the caller's). Position analysis of the offset slider-crank:
     Norton, Design of Machinery, x = r cos t + sqrt(l^2 - (r sin t - e)^2), written here
     in the record's own frame. Valid until the linkage goes over centre (binds).
+
+    A 280 mm pedal, clevis 50 mm below the pivot, a 140 mm pushrod square to it: 10 deg
+    moves the seat 50 sin(10 deg) - (140 - sqrt(140^2 - (50 (1 - cos 10 deg))^2)) =
+    8.68 mm (Norton's closed form, by hand).
+
+    >>> pedal = SliderCrankPedal(PedalLayout((0, 0), (0, -0.28), (0, -0.05), (0.14, -0.05), 0.5236))
+    >>> round(pedal.state(math.radians(10))[0] * 1e3, 2), round(pedal.at_stroke(0.005)[1], 3)
+    (8.68, 5.629)
     """
 
     mode = "layout"
@@ -234,7 +250,14 @@ class SliderCrankPedal:
         return arc_length(self.pad_radius, theta), self.pad_radius / state[1]
 
     def pushrod_angle(self, offset: float) -> float:
-        """Pushrod angle to the bore axis, asin(|h| / l) (rad)."""
+        """Pushrod angle to the bore axis, phi = asin(|h| / l) (rad): h the clevis's offset
+        from the axis (m), l the pushrod length (m). Norton, Design of Machinery,
+        slider-crank coupler angle.
+
+        >>> pedal = SliderCrankPedal(PedalLayout((0, 0), (0, -0.28), (0, -0.05), (0.14, -0.05), 0.5))
+        >>> round(math.degrees(pedal.pushrod_angle(0.01)), 3)  # asin(10 / 140)
+        4.096
+        """
         return math.asin(min(1.0, abs(offset) / self.rod))
 
     def pushrod_angle_max(self, stroke_used: float) -> float:
@@ -282,7 +305,12 @@ def _spaced(end: float) -> list[float]:
 
 def _rotate(point: tuple[float, float], centre: tuple[float, float],
             angle: float) -> tuple[float, float]:
-    """Rotate a point about a centre by angle (rad, counter-clockwise)."""
+    """Rotate a point about a centre by angle (rad, counter-clockwise): the rotation
+    matrix [[cos, -sin], [sin, cos]] (any linear algebra text).
+
+    >>> [round(v, 12) for v in _rotate((1.0, 0.0), (0.0, 0.0), math.pi / 2)]
+    [0.0, 1.0]
+    """
     dx, dy = point[0] - centre[0], point[1] - centre[1]
     cos_a, sin_a = math.cos(angle), math.sin(angle)
     return (centre[0] + dx * cos_a - dy * sin_a, centre[1] + dx * sin_a + dy * cos_a)

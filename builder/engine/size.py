@@ -47,7 +47,11 @@ def pedal_linkage(pedal: Pedal) -> LeverPedal | SliderCrankPedal:
 
 def line_losses(build: Build, rules: ShopRules, fluid_volume: float):
     """The line's losses as a function of pressure, dV(p) = L_hose v_hose(p) +
-    L_hard v_steel(p) + V p / K(fluid) (m^3 from Pa); see hydraulics."""
+    L_hard v_steel(p) + V p / K(fluid) (m^3 from Pa): hose swell over the flexible length
+    (the whole line when the record gives no hose_length), the shop's steel figure over
+    the rest, compression of fluid_volume V (m^3) in the record's fluid. Sources as
+    hydraulics.hose_expansion_volume and hydraulics.compression_volume; the parts add
+    (volumes in series)."""
     line = build.line
     hose = line.length if line.hose_length is None else line.hose_length
     hard = line.length - hose
@@ -72,6 +76,22 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
 
     Raises GeometryError (with a reason code) when a pedal layout cannot push the
     master at all.
+
+    Common practice, no source: a 5:1 pedal with equal bores and no fork turns a 100 lbf
+    release into 20 lbf at the pad; 1 mm of free play and 1.5 mm of dead stroke cost
+    5 * 2.5 = 12.5 mm of pad travel.
+
+    >>> from builder.model import Build, Clutch, Gearbox, Line, Master, Pedal, ShopRules, Slave
+    >>> build = Build("DC-001", None, "draft", None, None, Gearbox("ZZ-1", None, "none"),
+    ...               Clutch(444.82, 0.007, 0.001), None, Master(0.019, 0.032),
+    ...               Slave("concentric", 0.019, None, 0.030), Line(1.0, "steel", "DOT 4"),
+    ...               Pedal(0.25, 0.05, 0.15, free_play=0.001))
+    >>> rules = ShopRules("shop", "metric", (50.0, 200.0), 0.1, 0.9, 0.8,
+    ...                   {"rubber": 0.0, "braided_ptfe": 0.0, "steel": 0.0}, float("inf"),
+    ...                   0.003, 0.09, master_dead_stroke=0.0015)
+    >>> s = size_build(build, rules)
+    >>> round(s.effort_ideal / 4.4482216, 3), round(s.lost_pad_travel * 1e3, 3)
+    (20.0, 12.5)
     """
     eff = rules.default_efficiency if efficiency is None else efficiency
     clutch, master, slave, line = build.clutch, build.master, build.slave, build.line
