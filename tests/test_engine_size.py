@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import math
+import os
 
 import pytest
 import numpy as np
@@ -124,7 +125,7 @@ load_curves = st.lists(
 ).map(lambda points: ((0.0, 0.0), *sorted(points)))
 
 
-@settings(max_examples=60, deadline=None)
+@settings(max_examples=10 if "MUTANT_UNDER_TEST" in os.environ else 60, deadline=None)
 @given(curve=load_curves,
        pedal_ratio=st.floats(3.0, 8.0),
        master_in=st.floats(0.5, 1.0),

@@ -123,15 +123,14 @@ class Chain:
     fork, 1800 N, areas 283.5 / 380.1 mm^2, lossless, 8.7 mm of bearing travel: pushrod
     6613.7 / 283.5 + 2.5 = 25.83 mm, pad 144.6 mm, 1800 / (5.6 * 1.3407 * 2) = 119.87 N.
 
-    >>> chain = Chain(LeverPedal(0.28, 0.05, 0.15), None, 1800.0, 0.0012, 0.0, 2.835e-4,
+    >>> chain = Chain(LeverPedal(0.28, 0.05, 0.15), ((0.0, 1800.0),), 0.0012, 0.0, 2.835e-4,
     ...               3.801e-4, 2.0, 0.0015, 0.001, None, lambda pressure: 0.0)
     >>> [round(v, 4) for v in chain.at_bearing(0.0087)]
     [0.1446, 5.6, 119.8698]
     """
 
     pedal: LeverPedal | SliderCrankPedal
-    curve: Curve | None
-    peak_load: float  # N, used without a curve
+    curve: Curve
     clearance: float  # m, 0 with a concentric slave's preload
     preload: float  # N
     master_area: float  # m^2
@@ -143,6 +142,12 @@ class Chain:
     losses: Callable[[float], float]  # pressure Pa -> m^3
 
     @property
+    def smooth(self) -> bool:
+        """Whether the pad force bends between the curve's points (a layout's varying
+        ratio, a bare pedal force): then samples in between and a refined peak."""
+        return self.pedal.mode == "layout" or bool(self.bare)
+
+    @property
     def hydraulic(self) -> float:
         """R_h = A_s / A_m (hydraulics.hydraulic_ratio)."""
         return self.slave_area / self.master_area
@@ -152,10 +157,8 @@ class Chain:
         return 0.0 if not self.bare else interpolate(self.bare, pad)
 
     def load(self, bearing: float) -> float:
-        """The fluid's share of the bearing load at bearing travel x_b from rest (N): the
-        peak load without a curve, else load_at; less a concentric preload (hydraulic_load)."""
-        if self.curve is None:
-            return hydraulic_load(self.peak_load, self.preload)
+        """The fluid's share of the bearing load at bearing travel x_b from rest (N):
+        load_at less a concentric preload (hydraulic_load)."""
         return hydraulic_load(load_at(self.curve, self.clearance, bearing), self.preload)
 
     def at_bearing(self, bearing: float, load: float | None = None) -> tuple[float, float, float]:
@@ -181,11 +184,11 @@ def effort_samples(chain: Chain, reached: float, lost: float
     master pushes fluid, m. Sources as pad_force.
 
     >>> chain = Chain(LeverPedal(0.28, 0.05, 0.15), ((0.0, 0.0), (0.003, 1700.0),
-    ...               (0.005, 1850.0)), 1850.0, 0.0012, 0.0, 2.835e-4, 3.801e-4, 2.0, 0.0,
+    ...               (0.005, 1850.0)), 0.0012, 0.0, 2.835e-4, 3.801e-4, 2.0, 0.0,
     ...               0.0, None, lambda pressure: 0.0)
     >>> [(round(pad * 1e3, 1), round(force, 1)) for pad, force, _, _ in
     ...  effort_samples(chain, 0.0087, 0.0)][2:]
-    [(18.0, 0.0), (63.1, 113.2), (93.1, 123.2), (130.6, 123.2)]
+    [(18.0, 0.0), (18.0, 0.0), (63.1, 113.2), (93.1, 123.2), (130.6, 123.2)]
     """
     pedal = chain.pedal
     samples = []
@@ -194,20 +197,17 @@ def effort_samples(chain: Chain, reached: float, lost: float
         _, ratio = pedal.at_stroke(0.0)
         samples.append((pad, chain.bare_at(pad), 0.0, ratio))
     travels = {0.0, reached}
-    if chain.curve is not None:
-        travels.update(chain.clearance + x for x, _ in chain.curve
-                       if 0.0 < chain.clearance + x < reached)
-        if 0.0 < chain.clearance < reached:
-            travels.add(chain.clearance)
-    if pedal.mode == "layout" or chain.bare:
+    travels.update(chain.clearance + x for x, _ in chain.curve if chain.clearance + x < reached)
+    if chain.clearance < reached:
+        travels.add(chain.clearance)
+    if chain.smooth:
         step = reached / CURVE_SAMPLES
         travels.update(i * step for i in range(1, CURVE_SAMPLES))
     for bearing in sorted(travels):
-        load = chain.load(bearing)
-        if bearing == chain.clearance and load > 0.0 and chain.curve is not None:
-            pad, ratio, force = chain.at_bearing(bearing, 0.0)  # just before contact
+        if bearing == chain.clearance:  # just before contact: the step up to the curve
+            pad, ratio, force = chain.at_bearing(bearing, 0.0)
             samples.append((pad, force, bearing, ratio))
-        pad, ratio, force = chain.at_bearing(bearing, load)
+        pad, ratio, force = chain.at_bearing(bearing)
         samples.append((pad, force, bearing, ratio))
     return samples
 
@@ -222,14 +222,14 @@ def peak_effort(chain: Chain, samples: list[tuple[float, float, float, float]]
     linear in bearing travel the peak is at a sample (a curve point).
 
     >>> chain = Chain(LeverPedal(0.28, 0.05, 0.15), ((0.0, 0.0), (0.003, 1700.0),
-    ...               (0.005, 1850.0)), 1850.0, 0.0012, 0.0, 2.835e-4, 3.801e-4, 2.0, 0.0,
+    ...               (0.005, 1850.0)), 0.0012, 0.0, 2.835e-4, 3.801e-4, 2.0, 0.0,
     ...               0.0, None, lambda pressure: 0.0)
     >>> [round(v, 4) for v in peak_effort(chain, effort_samples(chain, 0.0087, 0.0))]
     [123.1995, 0.0931, 5.6]
     """
     best = max(range(len(samples)), key=lambda i: samples[i][1])
     force, pad, bearing, ratio = samples[best][1], samples[best][0], samples[best][2], samples[best][3]
-    if not (chain.pedal.mode == "layout" or chain.bare) or bearing <= 0.0:
+    if not chain.smooth or bearing <= 0.0:
         return force, pad, ratio
     travels = sorted({s[2] for s in samples})
     i = travels.index(bearing)

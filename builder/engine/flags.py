@@ -126,12 +126,12 @@ def pressure_rating_flags(worst: float, efficiency: float, build: Build,
 def linkage_flags(s: Sizing, build: Build, rules: ShopRules,
                   pedal: LeverPedal | SliderCrankPedal) -> list[Flag]:
     """pushrod-off-axis, linkage-over-centre, pad-travel-mismatch (layout mode only)."""
-    layout = build.pedal.layout
-    if pedal.mode != "layout" or layout is None:
+    if pedal.mode != "layout":
         return []
+    layout = build.pedal.layout
     flags = []
-    angle = s.linkage.pushrod_angle_max
-    if angle is not None and angle > rules.max_pushrod_angle:
+    angle = s.linkage.pushrod_angle_max  # always a figure in layout mode
+    if angle > rules.max_pushrod_angle:
         flags.append(Flag("pushrod-off-axis", "warn", (
             Figure("angle", angle, "angle"), Figure("limit", rules.max_pushrod_angle, "angle"))))
     if pedal.binds:

@@ -155,6 +155,9 @@ class SliderCrankPedal:
         if abs(self._offset0) >= self.rod * _MOST_OFF_AXIS:
             raise GeometryError("axis-across-pushrod")
         self._rest_along = math.sqrt(self.rod * self.rod - self._offset0 * self._offset0)
+        self._crank0, self._crank2 = crank, crank[0] ** 2 + crank[1] ** 2
+        # which side of the line pivot -> seat the clevis sits on at rest (+1 left, -1 right)
+        self._side = 1.0 if (sx - px) * crank[1] - (sy - py) * crank[0] > 0.0 else -1.0
         self._along0 = crank[0] * self.axis[0] + crank[1] * self.axis[1]  # k0 . u
         self._across0 = self.axis[0] * crank[1] - self.axis[1] * crank[0]  # u x k0
         rate_ccw = -self._across0 - self._offset0 * self._along0 / self._rest_along
@@ -220,28 +223,32 @@ class SliderCrankPedal:
         self._states = states
         pad, rod, asin = self.pad_radius, self.rod, math.asin
         self._sweep = tuple(  # arc_length and pushrod_angle written out: this runs for every sample
-            (pad * t, s, pad / rate, asin(min(1.0, abs(offset) / rod)))
+            (pad * t, s, pad / rate, asin(abs(offset) / rod))
             for t, (s, rate, offset) in zip(thetas, states)
         )
 
     def solve(self, stroke: float) -> tuple[float, tuple[float, float, float]]:
-        """(crank angle rad, state) where the master has moved `stroke` (m): Newton's
-        method on s(theta) - stroke, started inside a bracket from the sampled swing."""
-        strokes, thetas = self._strokes, self._thetas
+        """(crank angle rad, state) where the pushrod has moved `stroke` (m) along the axis,
+        clamped to the swing: the clevis is where the crank circle (radius r about the
+        pivot) meets the circle of the pushrod's length l about the seat's new place,
+        S = seat + s u. Circle-circle intersection (any analytic geometry text; Norton,
+        Design of Machinery, solves the slider-crank's position the same way): with
+        d = |S - P|, a = (r^2 - l^2 + d^2) / 2d, h = sqrt(r^2 - a^2), the clevis is at
+        P + a (S - P) / d +- h n, on the side of P-S where it was at rest (the swing ends
+        before the linkage crosses it)."""
         if stroke <= 0.0:
             return 0.0, self._states[0]
-        if stroke >= strokes[-1]:
-            return thetas[-1], self._states[-1]
-        i = bisect.bisect_right(strokes, stroke)
-        lo, hi = thetas[i - 1], thetas[i]
-        s_lo, s_hi = strokes[i - 1], strokes[i]
-        theta = lo + (hi - lo) * (stroke - s_lo) / (s_hi - s_lo)
-        for _ in range(8):
-            state = self.state(theta)
-            if abs(state[0] - stroke) < 1e-12:
-                break
-            theta = min(max(theta - (state[0] - stroke) / state[1], lo), hi)
-        return theta, state
+        if stroke >= self._strokes[-1]:
+            return self._thetas[-1], self._states[-1]
+        (px, py), (sx, sy) = self.layout.pivot, self.layout.pushrod_seat
+        dx, dy = sx + stroke * self.axis[0] - px, sy + stroke * self.axis[1] - py
+        d = math.hypot(dx, dy)
+        a = (self._crank2 - self.rod * self.rod + d * d) / (2.0 * d)
+        h = self._side * math.sqrt(self._crank2 - a * a)
+        kx, ky = (a * dx - h * dy) / d, (a * dy + h * dx) / d  # crank, pivot to clevis
+        k0x, k0y = self._crank0
+        theta = self.sense * math.atan2(k0x * ky - k0y * kx, k0x * kx + k0y * ky)
+        return theta, self.state(theta)
 
     def at_stroke(self, stroke: float) -> tuple[float, float]:
         """(pad travel along its arc r_pad * theta in m, instantaneous ratio
@@ -258,7 +265,7 @@ class SliderCrankPedal:
         >>> round(math.degrees(pedal.pushrod_angle(0.01)), 3)  # asin(10 / 140)
         4.096
         """
-        return math.asin(min(1.0, abs(offset) / self.rod))
+        return math.asin(abs(offset) / self.rod)  # |h| < l wherever the pushrod reaches
 
     def pushrod_angle_max(self, stroke_used: float) -> float:
         """Largest pushrod angle to the bore axis over the used swing (rad): the sampled

@@ -3,7 +3,8 @@ from __future__ import annotations
 
 from builder.engine import flags as checks
 from builder.engine.effort import (
-    Chain, effort_curve, effort_samples, overall_ratio, pad_force, peak_effort, predicted_effort,
+    Chain, effort_curve, effort_samples, interpolate, overall_ratio, pad_force, peak_effort,
+    predicted_effort,
 )
 from builder.engine.fork import fork_ratio
 from builder.engine.hydraulics import (
@@ -138,10 +139,11 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
         pad_release, ratio_release = pedal.at_stroke(rod_needed)
         point = release_point(pad_release, usable)
 
-    chain = Chain(pedal, clutch.load_curve, clutch.peak_load, clearance, preload, master_area,
-                  slave_area, r_f, dead, play, build.pedal.bare_effort, losses_at)
+    bare = build.pedal.bare_effort
     curve = None
     if clutch.load_curve:
+        chain = Chain(pedal, clutch.load_curve, clearance, preload, master_area, slave_area,
+                      r_f, dead, play, bare, losses_at)
         samples = effort_samples(chain, bearing, lost)
         effort, effort_pad, ratio_effort = peak_effort(chain, samples)
         if with_curve:
@@ -149,7 +151,7 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
     else:  # the peak load, at the release point (where the travel ends if it never releases)
         effort_pad, ratio_effort = pedal.at_stroke(rod_needed if releases else rod_used)
         effort = pad_force(hydraulic_load(clutch.peak_load, preload), ratio_effort, r_h, r_f,
-                           chain.bare_at(effort_pad))
+                           interpolate(bare, effort_pad) if bare else 0.0)
 
     rest, stop = pedal.poses()
     linkage = Linkage(
@@ -157,7 +159,7 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
         ratio_at_rest=ratio_rest,
         ratio_at_release=ratio_release,
         ratio_at_stop=pedal.at_stroke(pedal.stroke_at_stop)[1],
-        ratio_average=pad_used / rod_used if rod_used > 0.0 else ratio_rest,
+        ratio_average=pad_used / rod_used,  # > 0: a pedal moves its pushrod
         pushrod_angle_max=pedal.pushrod_angle_max(rod_used),
         sweep=pedal.sweep(),
         rest=rest,
