@@ -319,3 +319,20 @@ def test_prediction_carries_the_travel_margin_after_the_shops_travel_losses():
     prediction = calibrate(pairs).predict(proposal, make_sizing("QX-900"))
     assert prediction.slave_travel == pytest.approx(0.018)
     assert prediction.travel_margin == pytest.approx(9.0 / 9.5 - 1.0)
+
+
+def test_shrinkage_strength_without_each_build_equals_recomputing_it():
+    # The O(n log n) leave-one-out k against prior_builds called afresh on the values
+    # without each build (numpy medians), with ties from rounding and families of 1-3 builds.
+    from builder.history.calibration import _members, prior_builds, prior_builds_leaving_one_out
+
+    rng = np.random.default_rng(21)
+    for _ in range(25):
+        n = int(rng.integers(3, 40))
+        families = [f"F{int(rng.integers(0, 5))}" for _ in range(n)]
+        values = np.round(rng.normal(0.85, 0.05, n), int(rng.integers(2, 6)))
+        fast = prior_builds_leaving_one_out(values, _members(families))
+        for i in range(n):
+            keep = np.delete(np.arange(n), i)
+            brute = prior_builds(values[keep], _members([families[j] for j in keep]))
+            assert fast[i] == pytest.approx(brute, rel=1e-12)
