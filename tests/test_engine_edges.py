@@ -127,28 +127,52 @@ def test_the_slider_crank_solved_backwards_matches_norton(frame):
     assert pedal.solve(1.0)[1] == pedal.state(math.radians(30))
 
 
-def test_a_crank_along_the_bore_axis_turns_the_way_that_pushes():
-    # Crank along +x, bore axis +x through a seat 30 mm above: only the pushrod's offset
-    # decides which way pushes (ccw here: the clevis rises towards the axis line). Norton's
-    # closed form with t0 = 0, e = 0.03, t growing.
-    r, e = 0.05, 0.03
-    l = math.hypot(0.13, e)
-    layout = PedalLayout((0.0, 0.0), (0.15, 0.0), (r, 0.0), (r + 0.13, e), math.radians(10),
-                         bore_axis=0.0)
+@pytest.mark.parametrize("rise", [0.0, 0.001])
+def test_a_crank_along_the_bore_axis_turns_the_way_that_pushes(rise):
+    # Crank (nearly) along +x, bore axis +x through a seat 30 mm above: the pushrod's offset
+    # decides which way pushes (ccw here: the clevis rises towards the axis line), even
+    # against a crank tilted 1 mm the other way. Norton's closed form with e = 0.03 and
+    # t growing from t0 = asin(rise / r).
+    r, e = math.hypot(0.05, rise), 0.03
+    t0 = math.asin(rise / r)
+    clevis = (r * math.cos(t0), rise)
+    l = math.hypot(0.13, e - rise)
+    layout = PedalLayout((0.0, 0.0), (0.15, 0.0), clevis, (clevis[0] + 0.13, e),
+                         math.radians(10), bore_axis=0.0)
     pedal = SliderCrankPedal(layout)
-    x0 = norton_slider(r, l, e, 0.0)
+    x0 = norton_slider(r, l, e, t0)
     for deg in (2.0, 5.0, 9.0):
-        t = math.radians(deg)
-        assert pedal.state(t)[0] == pytest.approx(norton_slider(r, l, e, t) - x0, rel=1e-9)
+        t = t0 + math.radians(deg)
+        assert pedal.state(math.radians(deg))[0] == pytest.approx(
+            norton_slider(r, l, e, t) - x0, rel=1e-9)
     assert pedal.sense == 1.0
 
 
-def test_a_steep_bore_axis_is_the_same_line_either_way():
-    # The bore axis is a line: 80 deg and 260 deg give one linkage (the direction into the
-    # master is taken), here with the pushrod rising steeply at rest.
+@pytest.mark.parametrize("clevis, seat, axis_deg", [
+    ((0.0, -0.05), (0.14, -0.05), None), ((0.04, 0.03), (0.12, 0.10), None),
+    ((0.0, -0.05), (0.042, 0.0836), 126.87), ((-0.02, -0.05), (0.12, -0.02), 6.0),
+    ((0.03, -0.04), (-0.10, -0.09), 200.0)])
+def test_solving_backwards_undoes_the_forward_position(clevis, seat, axis_deg):
+    # Whatever the frame and axis, the crank angle solve() finds moves the pushrod by the
+    # stroke asked for (forward position analysis, Norton).
+    layout = PedalLayout((0.0, 0.0), (4 * clevis[0], 4 * clevis[1]), clevis, seat,
+                         math.radians(25), None if axis_deg is None else math.radians(axis_deg))
+    pedal = SliderCrankPedal(layout)
+    for share in (0.05, 0.3, 0.6, 0.95):
+        stroke = share * pedal.stroke_at_stop
+        assert pedal.state(pedal.solve(stroke)[0])[0] == pytest.approx(stroke, rel=1e-9)
+    end = pedal.solve(pedal.stroke_at_stop)
+    assert end[0] == pedal.end_angle and end[1] == pedal.state(pedal.end_angle)
+
+
+@pytest.mark.parametrize("degrees, seat", [((80.0, 260.0), (0.03, 0.09)),
+                                           ((126.87, -53.13), (0.042, 0.0836))])
+def test_a_steep_bore_axis_is_the_same_line_either_way(degrees, seat):
+    # The bore axis is a line: a direction and its opposite give one linkage (the way into
+    # the master is taken), here with the pushrod rising steeply at rest.
     states = []
-    for deg in (80.0, 260.0):
-        layout = PedalLayout((0.0, 0.0), (0.0, -0.28), (0.0, -0.05), (0.03, 0.09),
+    for deg in degrees:
+        layout = PedalLayout((0.0, 0.0), (0.0, -0.28), (0.0, -0.05), seat,
                              math.radians(25), bore_axis=math.radians(deg))
         pedal = SliderCrankPedal(layout)
         states.append([pedal.state(math.radians(a)) for a in (0.0, 5.0, 15.0)])
@@ -205,7 +229,7 @@ def test_a_load_that_steps_up_at_contact_is_drawn_as_a_step():
 def test_the_peak_can_sit_where_only_the_bare_pedal_pushes():
     # A strong return spring at rest and a light clutch in layout mode: the highest pad
     # force is the spring's at rest (before the master pushes), with the ratio at rest.
-    curve = ((0.0, 0.0), (0.004, 300.0))
+    curve = ((0.0, 0.0), (0.02, 8000.0))  # light within reach, heavy far past it
     layout = square_layout(11 * INCH, 2 * INCH, 5 * INCH, math.radians(28))
     build = make_build(layout=layout, pad_travel=11 * INCH * math.radians(28), load_curve=curve,
                        release_load=None, bare_effort=((0.0, 400.0), (0.01, 0.0)),
@@ -256,3 +280,56 @@ def test_refined_peak_against_a_bounded_minimiser_on_nortons_form():
     found = scipy.optimize.minimize_scalar(lambda t: -force(t), bounds=(best - 0.01, best + 0.01),
                                            method="bounded", options={"xatol": 1e-12})
     assert s.effort_ideal == pytest.approx(-found.fun, rel=1e-8)
+
+
+def test_a_peak_between_samples_is_found_where_the_ratio_is_lowest():
+    # A constant load: F = F_b dx_b / dx_pad peaks where the pedal ratio is lowest, here in
+    # mid-swing (the crank passes square to the bore axis at 10 deg of a 30 deg swing);
+    # scipy's bounded minimiser on Norton's closed form, differentiated exactly.
+    r, l, t0, pad_r, swing = 0.05, 0.14, math.radians(100), 0.28, math.radians(30)
+    e = r * math.sin(t0)
+    clevis = (r * math.cos(t0), r * math.sin(t0))
+    layout = PedalLayout((0.0, 0.0), (pad_r * math.cos(t0), pad_r * math.sin(t0)), clevis,
+                         (clevis[0] + l, clevis[1]), swing)
+    s = size_build(make_build(layout=layout, pad_travel=pad_r * swing,
+                              load_curve=((0.0, 1800.0),), release_load=None, clearance=0.0,
+                              slave_stroke=2 * INCH), LOSSLESS, efficiency=1.0)
+    a_m, a_s = math.pi / 4 * (0.75 * INCH) ** 2, math.pi / 4 * (0.875 * INCH) ** 2
+
+    def force(theta):
+        t = t0 + math.copysign(theta, -1.0)
+        root = math.sqrt(l * l - (r * math.sin(t) - e) ** 2)
+        dx = r * math.sin(t) + (r * math.sin(t) - e) * r * math.cos(t) / root
+        return 1800.0 * (a_m / a_s / 2.0) * dx / pad_r
+
+    found = scipy.optimize.minimize_scalar(lambda t: -force(t), bounds=(0.0, swing),
+                                           method="bounded", options={"xatol": 1e-12})
+    assert 0.05 < found.x < 0.3  # inside the swing, between samples
+    assert s.effort_ideal == pytest.approx(-found.fun, rel=1e-10)
+    assert s.effort_pad_travel == pytest.approx(pad_r * found.x, rel=1e-4)
+
+
+def test_hose_swell_starts_at_any_pressure_above_zero():
+    # A line through zero: at 1 Pa a hose swells by its figure times 1 Pa.
+    from builder.engine.hydraulics import expansion_per_length
+
+    assert expansion_per_length(3e-13, 1.0) == 3e-13
+    assert expansion_per_length(((1e6, 3e-7),), 0.5) == pytest.approx(1.5e-13)
+
+
+def test_the_sweep_carries_the_pushrod_angle_at_every_sample():
+    # The pushrod's largest angle can fall mid-swing (the crank passes square to the axis):
+    # asin(|r sin t - e| / l) (Norton) peaks at t = 90 deg when t0 = 110 deg.
+    r, l, t0 = 0.05, 0.14, math.radians(110)
+    e = r * math.sin(t0)
+    clevis = (r * math.cos(t0), r * math.sin(t0))
+    layout = PedalLayout((0.0, 0.0), (3 * clevis[0], 3 * clevis[1]), clevis,
+                         (clevis[0] + l, clevis[1]), math.radians(40))
+    pedal = SliderCrankPedal(layout)
+    for theta, row in zip(pedal._thetas, pedal.sweep()):
+        assert row[3] == pytest.approx(math.asin(abs(r * math.sin(t0 - theta) - e) / l),
+                                       abs=1e-12)
+    peak = math.asin((r - e) / l)
+    assert pedal.pushrod_angle_max(pedal.stroke_at_stop) == pytest.approx(peak, rel=1e-3)
+    assert pedal.pushrod_angle_max(pedal.stroke_at_stop) > pedal.pushrod_angle(
+        pedal.state(pedal.end_angle)[2])

@@ -52,6 +52,7 @@ def test_margin_exactly_at_the_minimum_or_zero_is_not_short():
     assert checks.margin_flags(0.011, 0.010, rules) == []
     assert [f.severity for f in checks.margin_flags(0.010, 0.010, rules)] == ["warn"]
     assert checks.margin_flags(0.0099, 0.010, rules, basis="after_losses")[0].basis == "after_losses"
+    assert checks.margin_flags(0.0105, 0.010, rules, basis="after_losses")[0].basis == "after_losses"
 
 
 def test_margin_past_the_largest_warns_but_not_at_it():
@@ -120,6 +121,7 @@ def test_effort_band_figures_and_boundaries():
         "effort-low", "warn", (Figure("effort", 50.0, "force"), Figure("low", 66.7, "force"),
                                Figure("high", 177.9, "force")), basis="calibrated")]
     assert checks.effort_band_flags(66.7, rules) == checks.effort_band_flags(177.9, rules) == []
+    assert checks.effort_band_flags(190.0, rules, basis="calibrated")[0].basis == "calibrated"
     light = size_build(make_build(release_load=100 * POUND_FORCE), make_rules())
     assert by_code(light)["effort-low"].value("effort") == light.effort_predicted
 
@@ -137,6 +139,10 @@ def test_pressure_ratings_on_the_worst_case_pressure_and_at_the_rating():
                             slave=SimpleNamespace(rated_pressure=1e6))
     [flag] = checks.pressure_rating_flags(2e6, 0.7, build, basis="calibrated")
     assert (flag.subject, flag.basis) == ("slave", "calibrated")
+    assert checks.pressure_rating_flags(2e6, 0.7, build)[0].basis == "computed"
+    full = make_build(master_rating=300 * PSI)
+    [again] = checks.pressure_flags(s, full, basis="calibrated")
+    assert again.basis == "calibrated"
 
 
 def test_linkage_flags_figures_and_boundaries():

@@ -42,9 +42,9 @@ def travel_flags(s: Sizing, rules: ShopRules, build: Build) -> list[Flag]:
     if s.release_point is not None and s.release_point > rules.latest_release_point:
         flags.append(Flag("release-late", "warn", (
             Figure("release_point", s.release_point, "fraction"),
-            Figure("pad_travel", s.pad_travel_to_release or 0.0, "length"),
+            Figure("pad_travel", s.pad_travel_to_release, "length"),  # set with a release point
             Figure("latest", rules.latest_release_point, "fraction"),
-            Figure("usable", s.usable_pad_travel or 0.0, "length"))))
+            Figure("usable", s.usable_pad_travel, "length"))))
     return flags
 
 
