@@ -158,9 +158,14 @@ def test_solving_backwards_undoes_the_forward_position(clevis, seat, axis_deg):
     layout = PedalLayout((0.0, 0.0), (4 * clevis[0], 4 * clevis[1]), clevis, seat,
                          math.radians(25), None if axis_deg is None else math.radians(axis_deg))
     pedal = SliderCrankPedal(layout)
+    angles = []
     for share in (0.05, 0.3, 0.6, 0.95):
         stroke = share * pedal.stroke_at_stop
-        assert pedal.state(pedal.solve(stroke)[0])[0] == pytest.approx(stroke, rel=1e-9)
+        theta = pedal.solve(stroke)[0]
+        assert 0.0 < theta < pedal.end_angle  # the clevis on its own side of pivot-seat
+        assert pedal.state(theta)[0] == pytest.approx(stroke, rel=1e-9)
+        angles.append(theta)
+    assert angles == sorted(angles)
     end = pedal.solve(pedal.stroke_at_stop)
     assert end[0] == pedal.end_angle and end[1] == pedal.state(pedal.end_angle)
 

@@ -183,7 +183,7 @@ def test_a_lever_pedal_raises_no_linkage_flags_and_needs_both_lengths():
                                         pivot_to_clevis=lengths[1])
         with pytest.raises(GeometryError) as caught:
             pedal_linkage(no_length)
-        assert caught.value.reason == "no-lengths"
+        assert caught.value.reason == str(caught.value) == "no-lengths"
 
 
 def test_coinciding_points_are_a_geometry_error():
