@@ -231,14 +231,21 @@ class Car:
     preload_factor: float  # real concentric preload over the recorded one
 
 
-def _car(plan: Plan) -> Car:
+def _car(plan: Plan, spongy: bool = False) -> Car:
+    """The build's car; `spongy`: a car that loses more travel than most (long free play,
+    a hose that swells half as much again), tried for a build rejected for short travel
+    when no ordinary car made its parts fail that way."""
     rng = random.Random(f"{SEED}-car-{plan.id}")
     recorded = plan.sections["pedal"].fields.get("free_play")
     play = (max(0.0, rng.gauss(recorded.si, CAR_FREE_PLAY_READ)) if recorded is not None
             else rng.uniform(*CAR_FREE_PLAY))
-    return Car(play, rng.gauss(0.0, CAR_DEAD_STROKE_SD), math.exp(rng.gauss(0.0, CAR_HOSE_SD)),
-               rng.gauss(0.0, CAR_SPRING_SD), rng.gauss(0.0, CAR_SPRING_SLOPE_SD),
-               rng.uniform(*CAR_PRELOAD))
+    car = Car(play, rng.gauss(0.0, CAR_DEAD_STROKE_SD), math.exp(rng.gauss(0.0, CAR_HOSE_SD)),
+              rng.gauss(0.0, CAR_SPRING_SD), rng.gauss(0.0, CAR_SPRING_SLOPE_SD),
+              rng.uniform(*CAR_PRELOAD))
+    if spongy:
+        car = dataclasses.replace(car, free_play=max(car.free_play, CAR_FREE_PLAY[1]),
+                                  hose_factor=1.5 * max(car.hose_factor, 1.0))
+    return car
 
 
 def _scaled_expansion(expansion, factor: float):
@@ -417,11 +424,11 @@ def invent(rng: random.Random, rules: m.ShopRules, ident: str, date: dt.date, st
 
     enrich(plan, rng), when given, may change each plan before its master and slave are chosen.
     """
-    for _ in range(60):
+    for attempt in range(120 if trouble == "travel" else 60):
         plan = _plan(rng, ident, date, status, FAMILY[family], trouble)
         if enrich is not None:
             enrich(plan, rng)
-        car = _car(plan)
+        car = _car(plan, spongy=attempt >= 60)
         chosen = _choose(plan, rng, rules, car)
         if chosen:
             break
