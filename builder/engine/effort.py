@@ -17,7 +17,8 @@ from builder.engine.linkage import LeverPedal, SliderCrankPedal
 from builder.engine.travel import pushrod_for_volume, volume_for_release
 
 CURVE_SAMPLES = 48  # extra bearing-travel samples where the pad force is not piecewise linear
-REFINE_STEPS = 40  # golden-section steps refining the peak between samples
+PEAK_SAMPLES = 12  # as many when only the peak is wanted (it is refined between samples)
+REFINE_STEPS = 32  # golden-section steps refining the peak: 0.618^32 = 2e-7 of the bracket
 _GOLDEN = (math.sqrt(5.0) - 1.0) / 2.0
 
 Curve = tuple[tuple[float, float], ...]
@@ -173,15 +174,15 @@ class Chain:
         return pad, ratio, pad_force(load, ratio, self.hydraulic, self.fork, self.bare_at(pad))
 
 
-def effort_samples(chain: Chain, reached: float, lost: float
+def effort_samples(chain: Chain, reached: float, lost: float, between: int = CURVE_SAMPLES
                    ) -> list[tuple[float, float, float, float]]:
     """(pad travel m, ideal pad force N, bearing travel m, pedal ratio) through the stroke,
     pad travel increasing: the bare pedal alone up to the lost travel (the pushrod taking
     up its free play, the piston its dead stroke), then each bearing travel up to
     `reached`: 0, the clearance (twice where the load steps up at contact), every curve
     point, and evenly spaced samples where the force is not piecewise linear in bearing
-    travel (a layout's varying ratio, a bare pedal force). `lost`: pad travel before the
-    master pushes fluid, m. Sources as pad_force.
+    travel (a layout's varying ratio, a bare pedal force): `between` steps of the travel.
+    `lost`: pad travel before the master pushes fluid, m. Sources as pad_force.
 
     >>> chain = Chain(LeverPedal(0.28, 0.05, 0.15), ((0.0, 0.0), (0.003, 1700.0),
     ...               (0.005, 1850.0)), 0.0012, 0.0, 2.835e-4, 3.801e-4, 2.0, 0.0,
@@ -201,8 +202,8 @@ def effort_samples(chain: Chain, reached: float, lost: float
     if chain.clearance < reached:
         travels.add(chain.clearance)
     if chain.smooth:
-        step = reached / CURVE_SAMPLES
-        travels.update(i * step for i in range(1, CURVE_SAMPLES))
+        step = reached / between
+        travels.update(i * step for i in range(1, between))
     for bearing in sorted(travels):
         if bearing == chain.clearance:  # just before contact: the step up to the curve
             pad, ratio, force = chain.at_bearing(bearing, 0.0)

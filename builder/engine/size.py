@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from builder.engine import flags as checks
 from builder.engine.effort import (
-    Chain, effort_curve, effort_samples, interpolate, overall_ratio, pad_force, peak_effort,
+    CURVE_SAMPLES, PEAK_SAMPLES, Chain, effort_curve, effort_samples, interpolate, overall_ratio, pad_force, peak_effort,
     predicted_effort,
 )
 from builder.engine.fork import fork_ratio
@@ -144,7 +144,8 @@ def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
     if clutch.load_curve:
         chain = Chain(pedal, clutch.load_curve, clearance, preload, master_area, slave_area,
                       r_f, dead, play, bare, losses_at)
-        samples = effort_samples(chain, bearing, lost)
+        samples = effort_samples(chain, bearing, lost,
+                                 CURVE_SAMPLES if with_curve else PEAK_SAMPLES)
         effort, effort_pad, ratio_effort = peak_effort(chain, samples)
         if with_curve:
             curve = effort_curve(samples, eff)
