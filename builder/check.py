@@ -145,6 +145,7 @@ def contract(result: CheckResult, primary: str = "imperial") -> dict:
         },
         "travel": {
             "master_stroke_used_mm": say.in_unit(s.master_stroke_used, "mm", 3),
+            "lost_pad_travel_mm": say.in_unit(s.lost_pad_travel, "mm", 3),
             "slave_mm": say.in_unit(s.slave_travel, "mm", 3),
             "bearing_mm": say.in_unit(s.bearing_travel, "mm", 3),
             "needed_bearing_mm": say.in_unit(s.needed_bearing_travel, "mm", 3),
@@ -156,6 +157,7 @@ def contract(result: CheckResult, primary: str = "imperial") -> dict:
             "calibrated_margin_pct": say.in_unit(p.travel_margin, "%", 2),
         },
         "pressure_kPa": say.in_unit(s.pressure, "kPa", 1),
+        "pressure_worst_kPa": say.in_unit(s.pressure_worst, "kPa", 1),
         "volume": {
             "master_swept_ml": say.in_unit(s.master_swept_volume, "mL", 3),
             "needed_ml": say.in_unit(s.needed_volume, "mL", 3),
@@ -329,6 +331,8 @@ def describe(result: CheckResult, primary: str) -> str:
                f"{q(s.effort_predicted, 'force')}"))
     row("Travel", f"master stroke used {q(s.master_stroke_used, 'length')}, slave "
         f"{q(s.slave_travel, 'length')}" + (" (slave stroke reached)" if s.slave_overtravel else ""))
+    row("", f"pad moves {q(s.lost_pad_travel, 'length')} before the master pushes fluid "
+        f"(free play {q(s.free_play, 'length')}, dead stroke {q(s.dead_stroke, 'length')})")
     row("", f"bearing {q(s.bearing_travel, 'length')} against "
         f"{q(s.needed_bearing_travel, 'length')} needed: margin "
         f"{say.percent(s.margin, signed=True)}")
@@ -341,7 +345,8 @@ def describe(result: CheckResult, primary: str) -> str:
         delta = result.deltas.slave_travel
         row("", f"measured slave travel {q(b.measured.slave_travel, 'length')}"
             + ("" if delta is None else f", {say.percent(delta, signed=True)} against computed"))
-    row("Pressure", f"{q(s.pressure, 'pressure')} in the line at peak release load")
+    row("Pressure", f"{q(s.pressure, 'pressure')} in the line at peak release load; "
+        f"{q(s.pressure_worst, 'pressure')} worst case (friction after the slave)")
     row("Volume", f"master sweeps {q(s.master_swept_volume, 'volume')}, release needs "
         f"{q(s.needed_volume, 'volume')} including {q(s.losses_volume, 'volume')} of hose and "
         "fluid losses")

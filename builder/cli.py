@@ -247,6 +247,7 @@ def calibration(ctx: Context) -> None:
 
     analysis = _run(ctx.analysis)
     echo_safe(reporting.calibration_table(analysis), nl=False)
+    click.echo(reporting.coverage_note(analysis))
 
 
 @main.command()

@@ -12,6 +12,7 @@ Imports builder.model (choices) and builder.units (parsing the range texts) only
 """
 from __future__ import annotations
 
+import dataclasses
 import functools
 import json
 import sys
@@ -37,12 +38,16 @@ _FRACTION_PATTERN = r"^\s*[0-9.][0-9.eE+-]*\s*%?\s*$"
 QUANTITY_DEFS = {  # schema $defs name -> (pattern, description)
     "length": (_QUANTITY_PATTERN, "A length with its unit, e.g. 7/8 in, 1-1/8 in, 22.2 mm."),
     "signed_length": (_SIGNED_PATTERN, "A length (may be negative) with its unit, e.g. -60 mm, 2.5 in."),
+    "signed_force": (_SIGNED_PATTERN, "A force (may be negative) with its unit, e.g. -3 lbf, 12 N."),
+    "signed_angle": (_SIGNED_PATTERN, "An angle (may be negative) with its unit, e.g. -8 deg, 172 deg."),
     "area": (_QUANTITY_PATTERN, "An area with its unit, e.g. 1.9 in^2, 1226 mm^2."),
     "force": (_QUANTITY_PATTERN, "A force with its unit, e.g. 410 lbf, 1.9 kN."),
     "pressure": (_QUANTITY_PATTERN, "A pressure with its unit, e.g. 1200 psi, 8.3 MPa."),
     "angle": (_QUANTITY_PATTERN, "An angle with its unit, e.g. 30 deg."),
     "hose_expansion": (_QUANTITY_PATTERN, "A hose expansion (volume per hose length per "
                                           "pressure) with its unit, e.g. 0.31 mL/m/MPa."),
+    "volume_per_length": (_QUANTITY_PATTERN, "A volume per length of hose with its unit, e.g. "
+                                             "0.66 cc/ft, 2.2 mL/m."),
     "fraction": (_FRACTION_PATTERN, "A percentage such as 10 % or a fraction such as 0.10."),
 }
 
@@ -63,10 +68,16 @@ class Field:
     required: bool = False  # within its group, or when a section is written out in full
     children: tuple[Field, ...] = ()  # a group's or a layout's fields; a curve's two columns
     default: str | None = None  # shop rules: the value used when the key is left out
+    # a quantity that may instead be written in this other form (points, or one per kind)
+    alternative: Field | None = None
+    example: str = "[0.12 in, 380 lbf]"  # a curve: one pair as written
+    least_items: int = 2  # a curve: fewest points
+    named: str | None = None  # the key's last part when it holds a dot itself ("DOT 5.1")
 
     @property
     def name(self) -> str:
-        return self.key.rsplit(".", 1)[-1]
+        return self.named or self.key.rsplit(".", 1)[-1]
+
 
     @property
     def signed(self) -> bool:
@@ -101,9 +112,28 @@ class Section:
         return tuple(f.name for f in self.fields if f.required)
 
 
-def _q(key, label, description, dimension, low, high, required=False, default=None) -> Field:
+def _q(key, label, description, dimension, low, high, required=False, default=None,
+       alternative=None) -> Field:
     return Field(key, QUANTITY, label, description, dimension, low, high, required=required,
-                 default=default)
+                 default=default, alternative=alternative)
+
+
+def _expansion(hose: str) -> Field:
+    """A hose kind's expansion: one figure, or points of volume per length against pressure."""
+    key = f"shop.hose_expansion.{hose}"
+    return _q(key, hose.replace("_", " "), f"Expansion of {hose} hose, e.g. 0.31 mL/m/MPa, or "
+              "[pressure, volume per length] points, e.g. [1000 psi, 0.66 cc/ft].",
+              "hose_expansion", "0 mL/m/MPa", "10 mL/m/MPa", required=True,
+              alternative=Field(f"{key}.points", CURVE, f"{hose.replace('_', ' ')} expansion "
+                                "points (pressure, volume per length)", "[pressure, volume per "
+                                "length of hose] points, pressure increasing; linear through "
+                                "zero below the first.", children=(
+                                    _q(f"{key}.points.pressure", "pressure", "Line pressure.",
+                                       "pressure", "0.1 MPa", "50 MPa"),
+                                    _q(f"{key}.points.volume", "volume per length", "Volume "
+                                       "growth per length of hose at that pressure.",
+                                       "volume_per_length", "0 mL/m", "100 mL/m")),
+                                example="[1000 psi, 0.66 cc/ft]", least_items=1))
 
 
 def _text(key, label, description) -> Field:
@@ -152,19 +182,24 @@ SECTIONS = (
               choices=model.FORK_TIP_MOVES, required=True),
     ), catalogue="gearboxes"),
     Section("clutch", "Clutch", "The clutch as the release bearing sees it.", (
-        _q("clutch.release_load", "release load", "Peak load at the release bearing.",
-           "force", "100 N", "20 kN", required=True),
+        _q("clutch.release_load", "release load", "Peak load at the release bearing; may be "
+           "left out when a load curve is given (its peak), else within 5 % of the curve's peak.",
+           "force", "100 N", "20 kN"),
         _q("clutch.release_travel", "release travel", "Bearing travel for full release.",
            "length", "1 mm", "30 mm", required=True),
         _q("clutch.clearance", "clearance", "Bearing travel before it meets the fingers.",
            "length", "0 mm", "20 mm", required=True),
-        Field("clutch.load_curve", CURVE, "load curve (bearing travel, load)",
-              "Optional [bearing travel, load] pairs, travel increasing, e.g. [0.12 in, 380 lbf].",
-              children=(_q("clutch.load_curve.travel", "bearing travel", "Bearing travel.",
-                           "length", "0 mm", "60 mm"),
+        Field("clutch.load_curve", CURVE, "load curve (bearing travel from contact, load)",
+              "Optional [bearing travel from first contact with the fingers, load] pairs, travel "
+              "increasing, e.g. [0.12 in, 380 lbf].",
+              children=(_q("clutch.load_curve.travel", "bearing travel", "Bearing travel from "
+                           "first contact.", "length", "0 mm", "60 mm"),
                         _q("clutch.load_curve.load", "load", "Load at the bearing.",
                            "force", "0 N", "20 kN"))),
-    ), catalogue="clutches"),
+        _q("clutch.max_release_travel", "largest release travel", "Optional maker's limit of "
+           "bearing travel past first contact; past it the fingers over-stroke.",
+           "length", "1 mm", "40 mm"),
+    ), catalogue="clutches", either=(("load_curve",), ("release_load",))),
     Section("fork", "Fork", "The release fork; leave out for a concentric slave.", (
         _q("fork.pivot_to_slave", "pivot to slave", "Fork pivot to the slave pushrod.",
            "length", "10 mm", "600 mm", required=True),
@@ -178,6 +213,9 @@ SECTIONS = (
            required=True),
         _q("master.rated_pressure", "rated pressure", "Maker's pressure rating (optional).",
            "pressure", "0.5 MPa", "50 MPa"),
+        _q("master.dead_stroke", "dead stroke", "Optional piston travel before the compensating "
+           "port closes and the master starts to push fluid (shop default when left out).",
+           "length", "0 mm", "10 mm"),
     ), catalogue="masters"),
     Section("slave", "Slave cylinder", "The clutch slave cylinder.", (
         Field("slave.kind", CHOICE, "slave kind", "external (works a fork) or concentric (on "
@@ -191,6 +229,14 @@ SECTIONS = (
         _q("slave.rated_pressure", "rated pressure", "Maker's pressure rating (optional).",
            "pressure", "0.5 MPa", "50 MPa"),
         _text("slave.bracket", "bracket", "How the slave is mounted."),
+        Field("slave.acts", CHOICE, "acts", "push (fluid behind the piston, the usual) or pull "
+              "(fluid on the rod side: give rod_diameter); push when left out.",
+              choices=model.SLAVE_ACTS),
+        _q("slave.rod_diameter", "rod diameter", "Pull slave: diameter of the rod through the "
+           "fluid side; the area is then pi/4 (bore^2 - rod^2).", "length", "2 mm", "60 mm"),
+        _q("slave.preload", "preload", "Optional, concentric slave: its internal spring's force "
+           "on the fingers; the bearing then rests on them (clearance taken as zero).",
+           "force", "0 N", "2 kN"),
     ), catalogue="slaves", one_of=("bore", "piston_area")),
     Section("line", "Line", "The hydraulic line from master to slave.", (
         _q("line.length", "length", "Line length, master to slave.", "length", "50 mm", "10 m",
@@ -199,6 +245,9 @@ SECTIONS = (
               choices=model.HOSE_KINDS, required=True),
         Field("line.fluid", CHOICE, "fluid", "Brake fluid: DOT 3, DOT 4, DOT 5 or DOT 5.1.",
               choices=model.FLUIDS, required=True),
+        _q("line.hose_length", "hose length", "Optional: the flexible part of the line length; "
+           "the rest is hard line (the shop's steel figure). All of it when left out.",
+           "length", "0 mm", "10 m"),
     )),
     Section("pedal", "Pedal", "The clutch pedal: two lengths, or a side-view layout.", (
         _q("pedal.pivot_to_pad", "pivot to pad", "Pedal pivot to pad centre.",
@@ -218,9 +267,22 @@ SECTIONS = (
                   _q("pedal.layout.rotation_to_stop", "rotation to stop", "Pedal swing to the "
                      "floor stop, the way that pushes the master in.", "angle", "1 deg",
                      "90 deg", required=True),
+                  _q("pedal.layout.bore_axis", "bore axis", "Optional direction of the master's "
+                     "bore axis in the layout frame, counter-clockwise from +x (default: from "
+                     "the clevis through the seat at rest).", "angle", "-360 deg", "360 deg"),
                   LAYOUT_CLEVIS_POSITIONS,
               )),
         CLEVIS_POSITIONS,
+        _q("pedal.free_play", "free play", "Optional pushrod clearance at the master before it "
+           "touches the piston (shop default when left out).", "length", "0 mm", "10 mm"),
+        Field("pedal.bare_effort", CURVE, "bare pedal effort (pad travel, force)",
+              "Optional [pad travel, force] pairs measured at the pad with the pushrod off, "
+              "travel increasing; negative where an over-centre spring helps.",
+              children=(_q("pedal.bare_effort.travel", "pad travel", "Pad travel from rest.",
+                           "length", "0 mm", "400 mm"),
+                        _q("pedal.bare_effort.force", "force", "Force at the pad (negative: "
+                           "the pedal is pulled down).", "force", "-300 N", "300 N")),
+              example="[6 in, -3 lbf]"),
     ), catalogue="pedals", either=(("layout",), ("pivot_to_pad", "pivot_to_clevis"))),
     Section("measured", "Measured on the car", "What the finished car showed; at least one "
             "value.", (
@@ -264,14 +326,19 @@ SHOP_FIELDS = (
        "share of pad travel, e.g. 80 %.", "fraction", "10 %", "100 %", required=True),
     _q("shop.default_efficiency", "default efficiency", "Mechanical efficiency used until "
        "history calibrates it, e.g. 85 % or 0.85.", "fraction", "10 %", "100 %", required=True),
-    Field("shop.hose_expansion", GROUP, "hose expansion", "Volume growth per hose length per "
-          "pressure, for each hose kind.", required=True, children=tuple(
-              _q(f"shop.hose_expansion.{hose}", hose.replace("_", " "), f"Expansion of {hose} "
-                 "hose, e.g. 0.31 mL/m/MPa.", "hose_expansion", "0 mL/m/MPa", "10 mL/m/MPa",
-                 required=True)
-              for hose in model.HOSE_KINDS)),
+    Field("shop.hose_expansion", GROUP, "hose expansion", "Volume growth of each hose kind: "
+          "one figure per hose length per pressure, or points of volume per hose length against "
+          "pressure.", required=True, children=tuple(
+              _expansion(hose) for hose in model.HOSE_KINDS)),
     _q("shop.fluid_bulk_modulus", "fluid bulk modulus", "Bulk modulus of the brake fluid, "
-       "e.g. 1.7 GPa.", "pressure", "0.1 GPa", "10 GPa", required=True),
+       "e.g. 1.7 GPa, or one per fluid kind.", "pressure", "0.1 GPa", "10 GPa", required=True,
+       alternative=Field("shop.fluid_bulk_modulus.by_fluid", GROUP, "bulk modulus by fluid",
+                         "One bulk modulus per fluid kind.", children=tuple(
+                             dataclasses.replace(
+                                 _q(f"shop.fluid_bulk_modulus.{fluid}", fluid,
+                                    f"Bulk modulus of {fluid} fluid.", "pressure", "0.1 GPa",
+                                    "10 GPa", required=True), named=fluid)
+                             for fluid in model.FLUIDS))),
     _q("shop.line_bore", "line bore", "Inner diameter of the line.", "length", "1 mm", "20 mm",
        default="3.2 mm"),
     _q("shop.max_pushrod_angle", "largest pushrod angle", "Flag the pushrod past this angle to "
@@ -283,13 +350,22 @@ SHOP_FIELDS = (
           "site shows. Default: measured, verified, rejected. Drafts are shown only by "
           "`fitment site build --include-drafts` (an internal copy).",
           choices=model.PUBLISHABLE, default=", ".join(model.PUBLISHABLE)),
+    _q("shop.master_dead_stroke", "master dead stroke", "Piston travel before the compensating "
+       "port closes, for a master that gives none (typical 1.5 mm, from memory).",
+       "length", "0 mm", "10 mm", default="1.5 mm"),
+    _q("shop.pushrod_free_play", "pushrod free play", "Pushrod clearance at the master, for a "
+       "pedal that gives none (typical 1 mm, from memory).", "length", "0 mm", "10 mm",
+       default="1 mm"),
+    _q("shop.max_travel_margin", "largest travel margin", "Optional: warn when the bearing "
+       "travel exceeds what is needed by more than this, e.g. 80 %.", "fraction", "0 %",
+       "1000 %"),
 )
 
 
 def _walk(fields: tuple[Field, ...]):
     for field in fields:
         yield field
-        yield from _walk(field.children)
+        yield from _walk(field.children + ((field.alternative,) if field.alternative else ()))
 
 
 def every_field() -> dict[str, Field]:
@@ -347,7 +423,9 @@ def _describe(field: Field) -> str:
 def field_schema(field: Field) -> dict:
     """The schema node for one field, with its title and description."""
     kind = field.kind
-    if kind == QUANTITY:
+    if kind == QUANTITY and field.alternative is not None:
+        node = {"anyOf": [_quantity_ref(field), field_schema(field.alternative)]}
+    elif kind == QUANTITY:
         node = _quantity_ref(field)
     elif kind == TEXT:
         node = {"type": list(_TEXT_TYPE)}
@@ -376,9 +454,9 @@ def field_schema(field: Field) -> dict:
                 "items": _point_node(field)}
     elif kind == CURVE:
         first, second = field.children
-        node = {"type": "array", "minItems": 2, "items": {
+        node = {"type": "array", "minItems": field.least_items, "items": {
             "type": "array", "minItems": 2, "maxItems": 2,
-            "description": f"A [{first.label}, {second.label}] pair, e.g. [0.12 in, 380 lbf].",
+            "description": f"A [{first.label}, {second.label}] pair, e.g. {field.example}.",
             "prefixItems": [_quantity_ref(c) | {"description": _describe(c)} for c in field.children],
         }}
     else:  # LAYOUT, GROUP

@@ -19,6 +19,7 @@ FORK_TIP_MOVES = ("forward", "rearward", "none")
 SLAVE_KINDS = ("external", "concentric")
 HOSE_KINDS = ("rubber", "braided_ptfe", "steel")
 FLUIDS = ("DOT 3", "DOT 4", "DOT 5", "DOT 5.1")
+SLAVE_ACTS = ("push", "pull")
 PART_KINDS = ("gearboxes", "clutches", "masters", "slaves", "pedals")
 
 
@@ -41,11 +42,22 @@ class Gearbox:
 
 @dataclass(frozen=True, slots=True)
 class Clutch:
-    release_load: float  # N, peak load at the release bearing
+    release_load: float | None  # N, peak load at the release bearing; may be left out with a curve
     release_travel: float  # m, bearing travel for full release
     clearance: float  # m, bearing travel before it meets the fingers
-    load_curve: tuple[tuple[float, float], ...] | None = None  # (bearing travel m, load N)
+    # (bearing travel from first contact m, load N)
+    load_curve: tuple[tuple[float, float], ...] | None = None
     part: str | None = None
+    max_release_travel: float | None = None  # m, maker's limit past contact; fingers over-stroke past it
+
+    @property
+    def peak_load(self) -> float:
+        """The peak load at the bearing (N): the load curve's highest point when the record
+        gives a curve (release_load is then a cross-check), else release_load."""
+        if self.load_curve:
+            return max(load for _, load in self.load_curve)
+        assert self.release_load is not None
+        return self.release_load
 
 
 @dataclass(frozen=True, slots=True)
@@ -60,6 +72,7 @@ class Master:
     stroke: float  # m
     rated_pressure: float | None = None  # Pa
     part: str | None = None
+    dead_stroke: float | None = None  # m, piston travel before the compensating port closes
 
     @property
     def area(self) -> float:
@@ -75,12 +88,23 @@ class Slave:
     rated_pressure: float | None = None  # Pa
     bracket: str | None = None
     part: str | None = None
+    acts: str | None = None  # one of SLAVE_ACTS; None reads as push
+    rod_diameter: float | None = None  # m, pull slave: the rod through the fluid side
+    preload: float | None = None  # N, concentric slave: internal spring force on the fingers
+
+    @property
+    def pulls(self) -> bool:
+        return self.acts == "pull"
 
     @property
     def area(self) -> float:
+        """Area the fluid pushes on (m^2): the given piston area, the annulus
+        pi / 4 (D^2 - d^2) of a pull slave, else pi D^2 / 4."""
         if self.piston_area is not None:
             return self.piston_area
         assert self.bore is not None
+        if self.pulls and self.rod_diameter is not None:
+            return circle_area(self.bore) - circle_area(self.rod_diameter)
         return circle_area(self.bore)
 
     @property
@@ -95,6 +119,7 @@ class Line:
     length: float  # m
     hose: str  # one of HOSE_KINDS
     fluid: str  # one of FLUIDS
+    hose_length: float | None = None  # m, the flexible part of length; None: all of it
 
 
 @dataclass(frozen=True, slots=True)
@@ -108,6 +133,8 @@ class PedalLayout:
     rotation_to_stop: float  # rad, swing to the floor stop, the way that pushes the master in
     # other clevis holes at rest (the pushrod is set to reach the same seat); `fitment suggest`
     clevis_positions: tuple[Point, ...] | None = None
+    bore_axis: float | None = None  # rad, direction of the master's bore axis in the frame;
+    # None: from the clevis through the seat at rest
 
 
 @dataclass(frozen=True, slots=True)
@@ -120,6 +147,9 @@ class Pedal:
     part: str | None = None
     # m, other pivot-to-clevis holes; with a layout, holes on the line from pivot to clevis
     clevis_positions: tuple[float, ...] | None = None
+    free_play: float | None = None  # m, pushrod clearance at the master; None: shop default
+    # (pad travel m, force N) measured with the pushrod off; negative where a spring helps
+    bare_effort: tuple[tuple[float, float], ...] | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -170,13 +200,18 @@ class ShopRules:
     min_travel_margin: float  # fraction, e.g. 0.10 for 10 %
     latest_release_point: float  # fraction of pad travel, e.g. 0.80
     default_efficiency: float  # fraction, used until history calibrates it
-    hose_expansion: dict[str, float]  # per hose kind: m^3 per m of hose per Pa (= m^2/Pa)
-    fluid_bulk_modulus: float  # Pa
+    # per hose kind: one figure, m^3 per m of hose per Pa (= m^2/Pa), or points
+    # ((pressure Pa, volume per length of hose m^2), ...) with pressure increasing
+    hose_expansion: dict[str, float | tuple[tuple[float, float], ...]]
+    fluid_bulk_modulus: float | dict[str, float]  # Pa; one figure or one per fluid kind
     line_bore: float  # m, inner diameter of the line, for the fluid volume
     max_pushrod_angle: float  # rad, flag the pushrod past this angle to the bore axis
     target_effort: float | None = None  # N; None: the middle of the effort band
     families: tuple[str, ...] = ()  # gearbox family codes known besides the catalogue's
     publish: tuple[str, ...] = PUBLISHABLE  # statuses the published site shows
+    master_dead_stroke: float = 0.0  # m, used when a master gives no dead_stroke
+    pushrod_free_play: float = 0.0  # m, used when a pedal gives no free_play
+    max_travel_margin: float | None = None  # fraction; warn past it (None: no upper limit)
 
 
 @dataclass(frozen=True, slots=True)

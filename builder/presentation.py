@@ -43,6 +43,7 @@ DISPLAY: dict[str, dict[str, tuple[str, int]]] = {
     "volume": {"imperial": ("in^3", 3), "metric": ("mL", 2)},
     "angle": {"imperial": ("deg", 1), "metric": ("deg", 1)},
     "hose_expansion": {"imperial": ("mL/m/MPa", 3), "metric": ("mL/m/MPa", 3)},
+    "volume_per_length": {"imperial": ("cc/ft", 3), "metric": ("mL/m", 3)},
     "fraction": {"imperial": ("%", 1), "metric": ("%", 1)},
 }
 # Chart axes: one unit per dimension and system (plain numbers along an axis).
@@ -310,6 +311,8 @@ GEOMETRY_SENTENCES = {
     "ratio-out-of-range": "the pedal ratio reaches {ratio} {angle} into the {swing} swing, "
                           "outside {low} to {high}: the linkage is beside a dead centre there. "
                           "Move the clevis, the master or the stop",
+    "axis-across-pushrod": "the bore axis runs nearly square to the pushrod at rest, so the "
+                           "pushrod cannot push along it; check bore_axis",
 }
 
 
@@ -331,6 +334,7 @@ _BASIS_WHICH = {
     "after_losses": "After the shop's measured travel losses, bearing travel",
 }
 _EFFORT_WHICH = {"computed": "Predicted", "calibrated": "Calibrated"}
+_EFFICIENCY_WHICH = {"computed": "the shop's default", "calibrated": "the calibrated"}
 
 
 def flag_sentence(flag: Flag, primary: str = "imperial") -> str:
@@ -346,8 +350,17 @@ def flag_sentence(flag: Flag, primary: str = "imperial") -> str:
         return (f"{which} {v['bearing']} is only {_signed(flag, 'margin')} over the "
                 f"{v['needed']} needed; the shop asks for {v['minimum']}.")
     if code == "master-volume-short":
-        return (f"The master's full stroke sweeps {v['swept']} but full release needs "
-                f"{v['needed']}, of which {v['losses']} goes to hose and fluid losses.")
+        return (f"The master's full stroke pushes {v['swept']} once its {v['dead_stroke']} "
+                f"dead stroke has closed the port, but full release needs {v['needed']}, of "
+                f"which {v['losses']} goes to hose and fluid losses.")
+    if code == "travel-margin-high":
+        return (f"Bearing travel is {_signed(flag, 'margin')} over what release needs, past "
+                f"the shop's {v['limit']}; the pedal releases early and pushes the fingers "
+                "further than they need.")
+    if code == "over-stroke":
+        return (f"At the pedal stop the bearing moves {v['travel']} past first contact, beyond "
+                f"the clutch maker's {v['limit']}: the fingers over-stroke. Limit the pedal "
+                "stroke (stop or smaller master) and follow the maker's figure.")
     if code == "slave-overtravel":
         return (f"The master pushes the slave to the end of its {v['slave_stroke']} stroke; "
                 "limit the pedal or master stroke so the slave cannot bottom.")
@@ -356,14 +369,15 @@ def flag_sentence(flag: Flag, primary: str = "imperial") -> str:
                 "the stop there so the master is not the stop.")
     if code == "release-late":
         return (f"Full release comes at {v['release_point']} of the usable pad travel "
-                f"({v['pad_travel']}), later than the shop's {v['latest']}.")
+                f"({v['pad_travel']} of {v['usable']}), later than the shop's {v['latest']}.")
     if code in ("effort-high", "effort-low"):
         side = "above" if code == "effort-high" else "below"
         return (f"{_EFFORT_WHICH[flag.basis]} pedal effort {v['effort']} is {side} the shop's "
                 f"band of {v['low']} to {v['high']}.")
     if code == "pressure-over-rating":
-        return (f"Worst-case line pressure {v['pressure']} is above the {flag.subject}'s rating "
-                f"of {v['rating']}; follow the maker's rating.")
+        return (f"Worst-case line pressure {v['pressure']} (static pressure at "
+                f"{_EFFICIENCY_WHICH[flag.basis]} efficiency {v['efficiency']}) is above the "
+                f"{flag.subject}'s rating of {v['rating']}; follow the maker's rating.")
     if code == "pushrod-off-axis":
         return (f"The pushrod swings {v['angle']} off the master's bore axis, past the shop's "
                 f"{v['limit']}; the side load wears the master bore.")
@@ -417,6 +431,17 @@ def basis_sentence(basis: Basis | None) -> str:
             f"{basis.interval_source} leave-one-out residuals")
 
 
+def coverage_sentence(group: GroupCalibration) -> str:
+    """How often the leave-one-out effort intervals held the measured effort, in words."""
+    if not group.loo_intervals:
+        return (f"Leave-one-out coverage: no build had an effort interval yet (a "
+                f"{group.interval_percent} % interval needs {group.interval_least} other builds "
+                "with a measured effort).")
+    return (f"Leave-one-out coverage: the {group.interval_percent} % effort interval made without each "
+            f"build held its measured effort for {group.loo_covered} of {group.loo_intervals} "
+            f"builds ({percent(group.loo_coverage)}).")
+
+
 def prediction_note(prediction: Prediction) -> str | None:
     """Why a prediction has no figure or no interval, in plain words (None when it has both)."""
     if prediction.effort is None:
@@ -430,8 +455,9 @@ def prediction_note(prediction: Prediction) -> str | None:
 # --- calibration ----------------------------------------------------------------------------
 
 CALIBRATION_HEADINGS = ("Group", "Builds", "Efficiency used", "Own median \u00b1 MAD", "Weight",
-                        "Typical error", "90 % of errors below", "Builds with travel",
-                        "Travel factor used", "Own median \u00b1 MAD")
+                        "Typical error", "90 % of errors below", "Interval held",
+                        "Builds with travel", "Travel factor used", "Own median \u00b1 MAD")
+EFFORT_COLUMNS = 8  # the effort half of CALIBRATION_HEADINGS; the travel half follows
 
 
 def calibration_cells(group: GroupCalibration) -> list[str]:
@@ -440,6 +466,7 @@ def calibration_cells(group: GroupCalibration) -> list[str]:
     return [group.name, str(group.n), percent(group.efficiency),
             spread(group.efficiency_median, group.efficiency_mad), factor(group.weight),
             percent(group.loo_median_abs_err), percent(group.loo_p90_abs_err),
+            f"{group.loo_covered} of {group.loo_intervals}",
             str(group.n_travel), factor(group.travel_factor),
             spread(group.travel_factor_median, group.travel_factor_mad, as_percent=False)]
 

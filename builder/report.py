@@ -163,6 +163,8 @@ def calibration_rows(analysis: Analysis) -> list[dict]:
             "own_weight_pct": say.in_unit(group.weight, "%", 1),
             "loo_median_err_pct": say.in_unit(group.loo_median_abs_err, "%", 1),
             "loo_p90_err_pct": say.in_unit(group.loo_p90_abs_err, "%", 1),
+            "loo_covered": f"{group.loo_covered}/{group.loo_intervals}",
+            "loo_coverage_pct": say.in_unit(group.loo_coverage, "%", 1),
         }
         for name, group in _groups(analysis)
     ]
@@ -177,6 +179,11 @@ def calibration_table(analysis: Analysis) -> str:
     """`fitment calibration`: the calibration page's figures as a terminal table."""
     return aligned(list(say.CALIBRATION_HEADINGS),
                    [say.calibration_cells(group) for _, group in _groups(analysis)])
+
+
+def coverage_note(analysis: Analysis) -> str:
+    """One line under the calibration table: how often the effort intervals held."""
+    return say.coverage_sentence(analysis.calibration.shop)
 
 
 def _spreadsheet_safe(value):

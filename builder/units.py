@@ -20,8 +20,12 @@ DIMENSIONS: dict[str, tuple[str, str]] = {
     "angle": ("radian", "30 deg"),
     "volume": ("meter ** 3", "0.5 in^3 or 8 mL"),
     "hose_expansion": ("meter ** 2 / pascal", "0.31 mL/m/MPa"),
+    "volume_per_length": ("meter ** 2", "0.66 cc/ft or 2.2 mL/m"),
     "fraction": ("", "10 % or 0.10"),
 }
+# A dimension that shares another's SI units: volume per length of hose is an area in SI,
+# so a unit pint resolves as an area is accepted for it.
+SAME_UNITS_AS = {"volume_per_length": "area"}
 
 INCH = 0.0254  # m, exact (NIST SP 811, B.8)
 POUND_FORCE = 4.4482216152605  # N, exact (NIST SP 811, B.8)
@@ -54,6 +58,8 @@ SEEDED_UNITS: dict[str, tuple[float, str]] = {
     "L": (1e-3, "volume"),
     "in^3": (INCH**3, "volume"),
     "mL/m/MPa": (1e-12, "hose_expansion"),
+    "mL/m": (1e-6, "volume_per_length"),
+    "cc/ft": (1e-6 / (12 * INCH), "volume_per_length"),
     "%": (1e-2, "fraction"),
 }
 
@@ -140,7 +146,7 @@ def _parse_text(text: str, dimension: str) -> float:
         factor, found = _resolve_unit(unit, text, dimension)
     except QuantityError as error:
         raise _slip(match, dimension) or error from None
-    if found != dimension:
+    if found != dimension and SAME_UNITS_AS.get(dimension) != found:
         raise _slip(match, dimension) or QuantityError("wrong-dimension", dimension, text,
                                                        found_dimension=found)
     return _finite(magnitude * factor, text, dimension, True)
@@ -224,7 +230,7 @@ def _ask_pint(unit: str) -> tuple[float, str] | str:
         base = _registry.Quantity(1.0, unit).to_base_units()
         factor = float(base.magnitude)
         for name, (reference, _) in DIMENSIONS.items():
-            if name == "fraction":
+            if name == "fraction" or name in SAME_UNITS_AS:
                 continue
             if base.dimensionality == _registry.Quantity(1.0, reference).dimensionality:
                 if name == "angle" and not _is_angle(_registry, unit):

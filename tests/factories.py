@@ -65,8 +65,18 @@ def make_build(
     line_length: float = 36 * INCH,
     master_rating: float | None = None,
     slave_rating: float | None = None,
+    hose_length: float | None = None,
+    fluid: str = "DOT 4",
+    slave_acts: str | None = None,
+    rod_diameter: float | None = None,
+    preload: float | None = None,
+    dead_stroke: float | None = None,
+    free_play: float | None = None,
+    bare_effort: tuple[tuple[float, float], ...] | None = None,
+    max_release_travel: float | None = None,
 ) -> Build:
-    """A build record built directly as model objects (invented values)."""
+    """A build record built directly as model objects (invented values). Dead stroke and
+    free play left None take the shop rules' (0 in make_rules unless given)."""
     return Build(
         id="TS-001",
         date=None,
@@ -74,13 +84,16 @@ def make_build(
         technician=None,
         vehicle="invented test roadster",
         gearbox=Gearbox("ZZ-9", None, "none" if fork is None else "rearward"),
-        clutch=Clutch(release_load, release_travel, clearance, load_curve),
+        clutch=Clutch(release_load, release_travel, clearance, load_curve,
+                      max_release_travel=max_release_travel),
         fork=None if fork is None else Fork(*fork),
-        master=Master(master_bore, master_stroke, master_rating),
+        master=Master(master_bore, master_stroke, master_rating, dead_stroke=dead_stroke),
         slave=Slave("concentric" if fork is None else "external", slave_bore, piston_area,
-                    slave_stroke, slave_rating),
-        line=Line(line_length, hose, "DOT 4"),
-        pedal=Pedal(pedal[0], pedal[1], pad_travel, layout=layout),
+                    slave_stroke, slave_rating, acts=slave_acts, rod_diameter=rod_diameter,
+                    preload=preload),
+        line=Line(line_length, hose, fluid, hose_length=hose_length),
+        pedal=Pedal(pedal[0], pedal[1], pad_travel, layout=layout, free_play=free_play,
+                    bare_effort=bare_effort),
     )
 
 

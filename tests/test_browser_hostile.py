@@ -60,7 +60,9 @@ def hostile_shop(base: Path) -> Path:
     shutil.copytree(ROOT / "records", base / "records")
     shutil.copytree(ROOT / "schema", base / "schema")
     records = base / "records"
-    text = (records / "builds" / "2025" / "HW-0134.yaml").read_text().replace("id: HW-0134", f"id: {HOSTILE_ID}")
+    source = next(path for path in sorted((records / "builds").glob("*/*.yaml"))  # master written out
+                  if re.search(r"(?m)^master:\n  bore: ", path.read_text()))
+    text = source.read_text().replace(f"id: {source.stem}", f"id: {HOSTILE_ID}")
     for field in TEXT_FIELDS:
         text = _set(text, field, hostile(field))
     text = re.sub(r"^notes: \|\n(?:  .*\n?)*", "", text, flags=re.M)

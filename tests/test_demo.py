@@ -116,7 +116,7 @@ def test_demo_stays_in_realistic_ranges(demo_shop):
         assert 5 / 8 * INCH - 1e-9 <= b.master.bore <= 1 * INCH + 1e-9, b.id
         if b.slave.bore is not None:
             assert 5 / 8 * INCH - 1e-9 <= b.slave.bore <= 1 * INCH + 1e-9, b.id
-        assert 1.3e3 <= b.clutch.release_load <= 4.5e3, b.id
+        assert 1.25e3 <= b.clutch.peak_load <= 4.5e3, b.id
         assert 7e-3 <= b.clutch.release_travel + b.clutch.clearance <= 10e-3, b.id
         assert 24 * INCH <= b.line.length <= 60 * INCH + 1e-3, b.id
         assert 5.5 * INCH <= b.pedal.pad_travel <= 7.0 * INCH + 1e-9, b.id
@@ -137,22 +137,32 @@ def test_layouts_agree_with_pad_travel(demo_shop):
         assert radius * lay.rotation_to_stop == pytest.approx(b.pedal.pad_travel, rel=0.02)
 
 
-def test_family_losses_are_recoverable(demo_shop):
-    """Median of ideal/measured effort and measured/computed slave travel per family
-    (numpy.median) lands within 3 % of the constants the generator used."""
+def test_the_car_is_richer_than_the_engine(demo_shop):
+    """The measured sections come from a car with its own free play, dead stroke, hose
+    swell and pedal springs, not from the engine times a constant: within a family the
+    measured/computed slave travel spreads by more than the 1 % travel gauge alone would
+    give, and some builds record what the shop otherwise assumes. The spread is the scaled
+    median absolute deviation (scipy.stats.median_abs_deviation, scale="normal")."""
+    import scipy.stats
+
     _, _, builds = demo_shop
     rules = demo.rules()
-    efficiency, travel = {}, {}
+    ratios = {}
     for b in builds:
         if b.status not in GOOD:
             continue
         s = size_build(b, rules, efficiency=1.0)
-        efficiency.setdefault(b.gearbox.family, []).append(s.effort_ideal / b.measured.pedal_effort)
-        travel.setdefault(b.gearbox.family, []).append(b.measured.slave_travel / s.slave_travel)
-    for family, values in efficiency.items():
-        assert np.median(values) == pytest.approx(catalogue.FAMILY_EFFICIENCY[family], rel=0.03)
-        assert np.median(travel[family]) == pytest.approx(
-            catalogue.FAMILY_TRAVEL_FACTOR[family], rel=0.03)
+        ratios.setdefault(b.gearbox.family, []).append(b.measured.slave_travel / s.slave_travel)
+    spreads = [scipy.stats.median_abs_deviation(v, scale="normal") for v in ratios.values()
+               if len(v) >= 6]
+    assert np.median(spreads) > 1.5 * catalogue.TRAVEL_NOISE
+    assert sum(b.pedal.free_play is not None for b in builds) >= 5
+    assert sum(b.line.hose_length is not None for b in builds) >= 5
+    assert any(b.pedal.layout is not None and b.pedal.layout.bore_axis is not None
+               for b in builds)
+    assert any(b.slave.pulls for b in builds) and any(b.slave.preload for b in builds)
+    assert any(b.pedal.bare_effort for b in builds)
+    assert any(b.clutch.release_load is None and b.clutch.load_curve for b in builds)
 
 
 def test_no_real_names_leak_into_free_text(demo_shop):

@@ -2,8 +2,11 @@
 from __future__ import annotations
 
 import math
+import os
 
 import pytest
+import numpy as np
+import scipy.integrate
 from hypothesis import given, settings, strategies as st
 
 from builder.engine import size_build
@@ -98,16 +101,22 @@ def _trapezoid(points):
     return sum((x1 - x0) * (y0 + y1) / 2 for (x0, y0), (x1, y1) in zip(points, points[1:]))
 
 
-def _bearing_work(curve, clearance, reached):
-    """Integral of bearing load over bearing travel, load 0 before the clearance."""
-    xs = sorted({0.0, clearance, reached, *(x for x, _ in curve if x < reached)})
-    xs = [x for x in xs if x <= reached]
-    points = []
-    for x in xs:
-        if x == clearance and x > 0:
-            points.append((x, 0.0))
-        points.append((x, load_at(curve, clearance, x)))
-    return _trapezoid(points)
+def _read(points, x):
+    """A table of points read as numpy does: straight lines between, flat past the ends."""
+    return float(np.interp(x, [p for p, _ in points], [f for _, f in points]))
+
+
+def _bearing_work(curve, clearance, reached, preload=0.0):
+    """Work done on the bearing, the integral of max(0, load - preload) over bearing travel
+    from rest: no load before the clearance, then the curve from first contact (scipy's
+    quad over numpy's interpolation, each curve point a break point)."""
+    if reached <= clearance:
+        return 0.0
+    breaks = [clearance + x for x, _ in curve if clearance < clearance + x < reached]
+    work, _ = scipy.integrate.quad(
+        lambda x: max(0.0, _read(curve, x - clearance) - preload), clearance, reached,
+        points=breaks or None, limit=200, epsabs=1e-10)
+    return work
 
 
 load_curves = st.lists(
@@ -116,27 +125,51 @@ load_curves = st.lists(
 ).map(lambda points: ((0.0, 0.0), *sorted(points)))
 
 
-@settings(max_examples=60, deadline=None)
+@settings(max_examples=10 if "MUTANT_UNDER_TEST" in os.environ else 60, deadline=None)
 @given(curve=load_curves,
        pedal_ratio=st.floats(3.0, 8.0),
        master_in=st.floats(0.5, 1.0),
        slave_in=st.floats(0.625, 1.25),
        fork=st.one_of(st.none(), st.floats(1.2, 3.0)),
-       clearance=st.floats(0.0, 0.003))
+       clearance=st.floats(0.0, 0.003),
+       free_play=st.floats(0.0, 0.003),
+       dead_stroke=st.floats(0.0, 0.003))
 def test_work_balance_pad_equals_bearing(curve, pedal_ratio, master_in, slave_in, fork,
-                                         clearance):
+                                         clearance, free_play, dead_stroke):
     # Work balance of an ideal machine (OpenStax College Physics, "Simple Machines";
     # energy conservation): no losses, efficiency 1, the work put in at the pad equals the
-    # work done at the bearing.
+    # work done at the bearing, free play and dead stroke included (the pad moves through
+    # them doing no work).
     build = make_build(
         load_curve=curve, pedal=(pedal_ratio * 2 * INCH, 2 * INCH),
         master_bore=master_in * INCH, slave_bore=slave_in * INCH, slave_stroke=4 * INCH,
         fork=None if fork is None else (fork * 2.5 * INCH, 2.5 * INCH), clearance=clearance,
-        release_load=max(load for _, load in curve))
+        release_load=max(load for _, load in curve), free_play=free_play,
+        dead_stroke=dead_stroke)
     s = size_build(build, LOSSLESS, efficiency=1.0)
     pad_work = _trapezoid(s.effort_curve)
     bearing_work = _bearing_work(curve, clearance, s.bearing_travel)
-    assert pad_work == pytest.approx(bearing_work, rel=1e-9, abs=1e-9)
+    assert pad_work == pytest.approx(bearing_work, rel=1e-7, abs=1e-7)
+    assert s.effort_curve[0] == (0.0, 0.0)
+
+
+def test_work_balance_with_free_play_preload_and_a_bare_pedal():
+    # Work balance (OpenStax College Physics, "Simple Machines"), lever pedal, no losses:
+    # pad work = work on the bearing by the fluid (load less the concentric slave's
+    # preload) + work against the bare pedal's own force over the whole pad travel.
+    curve = ((0.0, 300.0), (0.003, 1700.0), (0.006, 1850.0), (0.010, 1500.0))
+    bare = ((0.0, 20.0), (0.20, -10.0))  # a return spring that an over-centre spring beats
+    build = make_build(fork=None, slave_bore=None, piston_area=7.0e-4, slave_stroke=0.02,
+                       load_curve=curve, release_load=None, preload=250.0, clearance=0.0015,
+                       free_play=0.001, dead_stroke=0.0015, bare_effort=bare,
+                       pedal=(11 * INCH, 2 * INCH), pad_travel=6.5 * INCH)
+    s = size_build(build, LOSSLESS, efficiency=1.0)
+    pad_end = s.effort_curve[-1][0]
+    bare_work, _ = scipy.integrate.quad(lambda x: _read(bare, x), 0.0, pad_end)
+    # with a preload the bearing rests on the fingers: no clearance
+    assert s.clearance == 0.0 and s.needed_bearing_travel == build.clutch.release_travel
+    expected = _bearing_work(curve, 0.0, s.bearing_travel, preload=250.0) + bare_work
+    assert _trapezoid(s.effort_curve) == pytest.approx(expected, rel=2e-4)
 
 
 def test_work_balance_in_layout_mode():
@@ -145,19 +178,32 @@ def test_work_balance_in_layout_mode():
     curve = ((0.0, 0.0), (0.003, 1700.0), (0.006, 1850.0), (0.010, 1500.0))
     layout = square_layout(11 * INCH, 2 * INCH, 5 * INCH, math.radians(28))
     build = make_build(layout=layout, pad_travel=11 * INCH * math.radians(28),
-                       load_curve=curve, clearance=0.001, slave_stroke=4 * INCH)
+                       load_curve=curve, clearance=0.001, slave_stroke=4 * INCH,
+                       free_play=0.0008, dead_stroke=0.0012)
     s = size_build(build, LOSSLESS, efficiency=1.0)
     assert _trapezoid(s.effort_curve) == pytest.approx(
         _bearing_work(curve, 0.001, s.bearing_travel), rel=2e-3)
 
 
-def test_effort_curve_peaks_at_the_curve_peak_over_the_ratio():
-    # F_pad = F_bearing / R / eta (OpenStax College Physics, "Simple Machines").
+def test_effort_curve_peaks_at_the_headline_effort():
+    # F_pad = F_bearing / R / eta (OpenStax College Physics, "Simple Machines"): the plotted
+    # curve and the headline effort are the same function, so the curve's peak is it.
     curve = ((0.0, 0.0), (0.003, 1700.0), (0.006, 1850.0), (0.010, 1500.0))
     s = size_build(make_build(load_curve=curve, release_load=1850.0), make_rules())
     assert max(force for _, force in s.effort_curve) == pytest.approx(s.effort_predicted)
     pads = [pad for pad, _ in s.effort_curve]
     assert pads == sorted(pads) and pads[0] == 0.0
+    # lever pedal: the peak load over the overall ratio, 1850 N / (5.5 * 1.3611 * 2) by hand
+    assert s.effort_ideal == pytest.approx(1850.0 / (5.5 * (0.875 / 0.75) ** 2 * 2.0))
+
+
+def test_load_curve_is_read_from_first_contact():
+    # The curve's travel is counted from first contact: at clearance + x the load is the
+    # curve's at x (numpy.interp), so there is no step inside the first segment.
+    curve = ((0.0, 0.0), (0.003, 1300.0), (0.006, 1500.0))
+    for x in (0.0, 0.0005, 0.0015, 0.004, 0.009):
+        assert load_at(curve, 0.0012, 0.0012 + x) == pytest.approx(_read(curve, x))
+    assert load_at(curve, 0.0012, 0.0011) == 0.0
 
 
 # --- flags, each on a purpose-built case --------------------------------------------
@@ -204,7 +250,7 @@ def test_pressure_over_rating_names_the_cylinder():
     s = size_build(make_build(master_rating=300 * PSI, slave_rating=2000 * PSI), make_rules())
     [flag] = [f for f in s.flags if f.code == "pressure-over-rating"]
     assert flag.subject == "master" and flag.value("rating") == 300 * PSI
-    assert flag.value("pressure") == s.pressure
+    assert flag.value("pressure") == s.pressure_worst == s.pressure / 0.85
 
 
 def test_master_volume_short():

@@ -143,3 +143,23 @@ def test_travel_short_is_judged_on_the_smaller_margin_after_measured_losses():
     assert judged.flags[0].value("bearing") == pytest.approx(0.009)  # 18 mm / fork ratio 2
     longer = dataclasses.replace(shorter, slave_travel=0.021, travel_margin=10.5 / 9.5 - 1.0)
     assert judged_on_history(sizing, longer, rules) is sizing  # the engine's margin is smaller
+
+
+def test_worst_pressure_and_ratings_follow_the_calibrated_efficiency():
+    # Worst-case pressure = static / efficiency (all losses after the slave; efficiency of a
+    # machine, OpenStax College Physics, "Simple Machines"): 2.3 MPa static at a calibrated
+    # 0.70 is 3.2857 MPa (by hand), above a 3.2 MPa master rating though under it at 0.85.
+    rules = make_rules()
+    build = dataclasses.replace(make_build("QX-001"), master=dataclasses.replace(
+        make_build("QX-001").master, rated_pressure=3.2e6))
+    sizing = dataclasses.replace(make_sizing("QX-001"), pressure_worst=2.3e6 / 0.85)
+    calibrated = Prediction(effort=100.0 / 0.70, interval=None, n_builds=12, basis=None,
+                            efficiency=0.70)
+    judged = judged_on_history(sizing, calibrated, rules, build)
+    assert judged.pressure_worst == pytest.approx(3.2857143e6)
+    [flag] = [f for f in judged.flags if f.code == "pressure-over-rating"]
+    assert (flag.subject, flag.basis, flag.value("efficiency")) == ("master", "calibrated", 0.70)
+    assert judged.pressure == sizing.pressure  # the static figure stays the engine's
+    kinder = dataclasses.replace(calibrated, efficiency=0.95)
+    assert not [f for f in judged_on_history(sizing, kinder, rules, build).flags
+                if f.code == "pressure-over-rating"]

@@ -10,7 +10,7 @@ import pytest
 import scipy.stats
 
 from builder.history import Deltas, calibrate, deltas
-from builder.history.calibration import shrink_weight
+from builder.history.calibration import conformal_ranks, shrink_weight
 from history_factories import history, make_build, make_sizing
 
 
@@ -117,8 +117,14 @@ def test_leave_one_out_shortcut_equals_recalibrating_without_each_build():
     rng = np.random.default_rng(11)
     pairs = history({"QX-5": list(rng.normal(0.85, 0.04, 12)),  # a family standing alone
                      "TR-4B": list(rng.normal(0.75, 0.04, 4)),  # a thin one
+                     "ZD-3": list(rng.normal(0.80, 0.02, 3)),  # with these three, k is
+                     "PL-6": list(rng.normal(0.78, 0.05, 2)),  # estimated from the spreads
                      "KM-2": [0.70]})  # one build
     calibration = calibrate(pairs)
+    # the shrinkage strength itself moves when a build is left out
+    from builder.history.calibration import prior_builds_leaving_one_out
+    efficiency = calibration._efficiency
+    assert len(set(np.round(prior_builds_leaving_one_out(efficiency.values, efficiency.members), 9))) > 3
     for build, sizing in pairs:
         others = [p for p in pairs if p[0].id != build.id]
         brute = calibrate(others).predict(build, sizing)  # refit from scratch without it
@@ -193,36 +199,75 @@ def test_not_enough_history_below_three_builds():
     assert (alone.effort, alone.n_builds) == (None, 2)
 
 
-def test_interval_from_family_residual_percentiles():
-    own = [0.78, 0.80, 0.83, 0.85, 0.86, 0.88, 0.90]
+def test_conformal_ranks_cover_as_probability_theory_says():
+    # For m exchangeable continuous residuals and a new one, the new one's rank among all
+    # m + 1 is uniform on 1..m+1 (any probability text on order statistics), so it falls
+    # between the lo-th and hi-th smallest of the m with probability (hi - lo) / (m + 1).
+    # Checked by simulation with numpy's generator: 40,000 draws, 3 standard errors.
+    rng = np.random.default_rng(5)
+    for m in (9, 14, 30):
+        lo, hi = conformal_ranks(m)
+        assert (hi - lo) / (m + 1) >= 0.80
+        draws = rng.standard_t(4, size=(40_000, m + 1))  # heavy tails: no normality needed
+        ordered = np.sort(draws[:, :m], axis=1)
+        inside = (ordered[:, lo - 1] <= draws[:, m]) & (draws[:, m] <= ordered[:, hi - 1])
+        expected = (hi - lo) / (m + 1)
+        assert inside.mean() == pytest.approx(expected, abs=3 * np.sqrt(expected * (1 - expected) / 40_000))
+    assert conformal_ranks(8) is None  # 8 residuals cannot bound an 80 % interval
+
+
+def test_interval_from_family_residual_ranks():
+    own = [0.78, 0.80, 0.81, 0.83, 0.84, 0.85, 0.86, 0.87, 0.88, 0.89, 0.90, 0.91, 0.92,
+           0.93, 0.95, 0.79, 0.82, 0.94, 0.96, 0.77]
     pairs = history({"QX-5": own, "TR-4B": [0.70, 0.72, 0.75]})
     calibration = calibrate(pairs)
-    residuals = np.array(calibration.families["QX-5"].residuals)
+    residuals = np.sort(calibration.families["QX-5"].residuals)
     proposal = make_build("QX-900", measured=False)
     prediction = calibration.predict(proposal, make_sizing("QX-900"))
-    # 10th and 90th percentiles by numpy.percentile (linear) of the family residuals
-    low, high = np.percentile(residuals, [10, 90])
+    # 20 residuals: lo = floor(0.1 * 21) = 2, hi = ceil(0.9 * 21) = 19 (by hand)
     assert prediction.interval == pytest.approx(
-        (prediction.effort * (1 + low), prediction.effort * (1 + high)))
-    assert (prediction.basis.interval_source, prediction.basis.interval_count) == ("family", 7)
-    # a build of the family leaves its own residual out of its interval
+        (prediction.effort * (1 + residuals[1]), prediction.effort * (1 + residuals[18])))
+    assert (prediction.basis.interval_source, prediction.basis.interval_count) == ("family", 20)
+    # a build of the family leaves its own residual out: 19 left, lo = 2, hi = ceil(18) = 18
     build, sizing = pairs[2]
     mine = calibration.predict(build, sizing)
     loo_residual = 100.0 / own[2] / mine.effort - 1  # measured / predicted - 1
     others = np.delete(residuals, np.argmin(np.abs(residuals - loo_residual)))
-    low, high = np.percentile(others, [10, 90])
-    assert mine.interval == pytest.approx((mine.effort * (1 + low), mine.effort * (1 + high)))
+    assert mine.interval == pytest.approx((mine.effort * (1 + others[1]),
+                                           mine.effort * (1 + others[17])))
 
 
 def test_thin_family_interval_comes_from_shop_wide_residuals():
-    pairs = history({"QX-5": [0.78, 0.80, 0.83, 0.85, 0.86, 0.88], "TR-4B": [0.70, 0.72]})
+    pairs = history({"QX-5": [0.78, 0.80, 0.83, 0.85, 0.86, 0.88, 0.81, 0.84],
+                     "TR-4B": [0.70, 0.72]})
     calibration = calibrate(pairs)
     proposal = make_build("TR-900", family="TR-4B", measured=False)
     prediction = calibration.predict(proposal, make_sizing("TR-900"))
-    low, high = np.percentile(calibration.shop.residuals, [10, 90])  # numpy.percentile
+    ordered = np.sort(calibration.shop.residuals)  # 10 residuals: ranks 1 and 10 (by hand)
     assert prediction.interval == pytest.approx(
-        (prediction.effort * (1 + low), prediction.effort * (1 + high)))
+        (prediction.effort * (1 + ordered[0]), prediction.effort * (1 + ordered[9])))
     assert prediction.basis.interval_source == "shop-wide"
+    # too few anywhere: no interval, and the words say so
+    few = calibrate(history({"QX-5": [0.78, 0.80, 0.83, 0.85]}))
+    assert few.predict(proposal, make_sizing("TR-900")).interval is None
+
+
+def test_leave_one_out_coverage_by_hand():
+    # Ten builds of one family: each build's interval comes from the other nine residuals,
+    # ranks 1 and 9 of 9 (floor(0.1 * 10) = 1, ceil(0.9 * 10) = 9): their smallest and
+    # largest. Only the builds with the smallest and the largest residual fall outside
+    # theirs, so 8 of 10 are covered (worked by hand from the rank rule).
+    values = [0.80, 0.81, 0.82, 0.83, 0.84, 0.85, 0.86, 0.87, 0.88, 0.90]
+    calibration = calibrate(history({"QX-5": values}))
+    for group in (calibration.shop, calibration.families["QX-5"]):
+        assert (group.loo_covered, group.loo_intervals) == (8, 10)
+        assert group.loo_coverage == pytest.approx(0.8)
+    # brute force: the same count from predict() on each build and its measured effort
+    covered = 0
+    for build, sizing in history({"QX-5": values}):
+        low, high = calibration.predict(build, sizing).interval
+        covered += low <= build.measured.pedal_effort <= high
+    assert covered == 8
 
 
 def test_unknown_family_uses_shop_wide_value():
@@ -274,3 +319,20 @@ def test_prediction_carries_the_travel_margin_after_the_shops_travel_losses():
     prediction = calibrate(pairs).predict(proposal, make_sizing("QX-900"))
     assert prediction.slave_travel == pytest.approx(0.018)
     assert prediction.travel_margin == pytest.approx(9.0 / 9.5 - 1.0)
+
+
+def test_shrinkage_strength_without_each_build_equals_recomputing_it():
+    # The O(n log n) leave-one-out k against prior_builds called afresh on the values
+    # without each build (numpy medians), with ties from rounding and families of 1-3 builds.
+    from builder.history.calibration import _members, prior_builds, prior_builds_leaving_one_out
+
+    rng = np.random.default_rng(21)
+    for _ in range(25):
+        n = int(rng.integers(3, 40))
+        families = [f"F{int(rng.integers(0, 5))}" for _ in range(n)]
+        values = np.round(rng.normal(0.85, 0.05, n), int(rng.integers(2, 6)))
+        fast = prior_builds_leaving_one_out(values, _members(families))
+        for i in range(n):
+            keep = np.delete(np.arange(n), i)
+            brute = prior_builds(values[keep], _members([families[j] for j in keep]))
+            assert fast[i] == pytest.approx(brute, rel=1e-12)

@@ -12,6 +12,7 @@ import pint
 import pytest
 
 from builder import presentation as say
+from builder.engine.linkage import GeometryError
 from builder.engine.result import Figure, Flag
 from builder.history.calibration import Basis
 from builder.history.similar import Difference
@@ -71,30 +72,68 @@ def test_same_value_same_text_wherever_it_appears():
 @pytest.mark.parametrize("code, severity, names, subject", [
     ("travel-short", "fail", ("bearing", "needed", "margin"), None),
     ("travel-short", "warn", ("bearing", "needed", "margin", "minimum"), None),
-    ("master-volume-short", "fail", ("swept", "needed", "losses"), None),
+    ("master-volume-short", "fail", ("swept", "needed", "losses", "dead_stroke"), None),
+    ("travel-margin-high", "warn", ("margin", "limit"), None),
+    ("over-stroke", "fail", ("travel", "limit"), None),
     ("slave-overtravel", "fail", ("slave_stroke",), None),
     ("master-bottoms-early", "warn", ("floor_gap",), None),
-    ("release-late", "warn", ("release_point", "pad_travel", "latest"), None),
+    ("release-late", "warn", ("release_point", "pad_travel", "latest", "usable"), None),
     ("effort-high", "warn", ("effort", "low", "high"), None),
     ("effort-low", "warn", ("effort", "low", "high"), None),
-    ("pressure-over-rating", "fail", ("pressure", "rating"), "slave"),
+    ("pressure-over-rating", "fail", ("pressure", "rating", "efficiency"), "slave"),
     ("pushrod-off-axis", "warn", ("angle", "limit"), None),
     ("pad-travel-mismatch", "warn", ("swing", "swing_travel", "recorded"), None),
 ])
 def test_every_flag_code_has_a_sentence_with_every_figure(code, severity, names, subject):
     dimensions = {"margin": "fraction", "minimum": "fraction", "release_point": "fraction",
                   "latest": "fraction", "swept": "volume", "needed": "volume", "losses": "volume",
+                  "efficiency": "fraction",
                   "effort": "force", "low": "force", "high": "force", "pressure": "pressure",
                   "rating": "pressure", "angle": "angle", "limit": "angle", "swing": "angle"}
     if code == "travel-short":
         dimensions["needed"] = "length"
+    if code == "travel-margin-high":
+        dimensions["limit"] = "fraction"
     figures = tuple(Figure(name, 0.01 * (i + 1), dimensions.get(name, "length"))
                     for i, name in enumerate(names))
     sentence = say.flag_sentence(Flag(code, severity, figures, subject), "metric")
     for figure in figures:
-        assert say.quantity(figure.value, figure.dimension, "metric") in sentence, figure.name
+        shown = (say.percent(figure.value, signed=True) if (code, figure.name) in _SIGNED
+                 else say.quantity(figure.value, figure.dimension, "metric"))
+        assert shown in sentence, figure.name
     if subject:
         assert subject in sentence
+
+
+_SIGNED = {("travel-short", "margin"), ("travel-margin-high", "margin")}
+
+
+def test_pressure_sentence_names_the_efficiency_it_rests_on():
+    figures = (Figure("pressure", 8.4e6, "pressure"), Figure("rating", 8.0e6, "pressure"),
+               Figure("efficiency", 0.82, "fraction"))
+    calibrated = say.flag_sentence(Flag("pressure-over-rating", "fail", figures, "master",
+                                        basis="calibrated"))
+    assert "the calibrated efficiency 82.0 %" in calibrated and "8400 kPa" in calibrated
+    computed = say.flag_sentence(Flag("pressure-over-rating", "fail", figures, "master"))
+    assert "the shop's default efficiency 82.0 %" in computed
+
+
+@pytest.mark.parametrize("reason", ["points-coincide", "pushrod-along-crank", "no-lengths",
+                                    "axis-across-pushrod", "dead-centre", "ratio-out-of-range"])
+def test_every_geometry_reason_has_words(reason):
+    error = GeometryError(reason, angle=0.5, swing=1.0, ratio=250.0, bounds=(1 / 6, 200.0))
+    words = say.geometry_message(error)
+    assert words and "{" not in words
+    if reason == "dead-centre":  # 0.5 rad = 28.6 deg, 1 rad = 57.3 deg (pint: radian to degree)
+        assert "28.6 deg" in words and "57.3 deg" in words
+    if reason == "ratio-out-of-range":
+        assert "250.00 : 1" in words and "200.00 : 1" in words
+
+
+def test_volume_per_length_reads_in_cc_per_foot_and_ml_per_metre():
+    # 1 cc/ft = 1 cm^3 / 0.3048 m = 3.28084 mL/m (NIST SP 811: 1 ft = 0.3048 m exactly; pint)
+    value = UREG.Quantity(0.66, "cc/ft").to("m**2").magnitude
+    assert say.quantity(value, "volume_per_length") == "0.66 cc/ft (2.165 mL/m)"
 
 
 def test_basis_words():
@@ -130,3 +169,17 @@ def test_out_of_range_sentence_shows_both_systems():
     error = QuantityError("out-of-range", "length", "75 in", low=0.003, high=0.060)
     assert say.quantity_message(error) == ("75 in is outside the plausible range 0.118 in (3 mm) "
                                            "to 2.362 in (60 mm) for this field")
+
+
+def test_coverage_sentence_counts_what_held():
+    from builder.history.calibration import GroupCalibration
+
+    group = GroupCalibration("shop-wide", 50, 0.85, 0.85, 0.05, 1.0, 1.0, 1.0, 0.01, 50, 0.02,
+                             0.04, (), loo_covered=41, loo_intervals=50, interval_percent=80,
+                             interval_least=9)
+    assert say.coverage_sentence(group) == (
+        "Leave-one-out coverage: the 80 % effort interval made without each build held its "
+        "measured effort for 41 of 50 builds (82.0 %).")
+    none = GroupCalibration("shop-wide", 4, 0.85, 0.85, 0.05, 1.0, 1.0, 1.0, 0.01, 4, 0.02,
+                            0.04, (), interval_percent=80, interval_least=9)
+    assert "needs 9 other builds" in say.coverage_sentence(none)

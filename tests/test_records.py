@@ -407,7 +407,7 @@ def test_plausible_table_is_documented_and_consistent():
     for key, (dimension, low, high) in PLAUSIBLE.items():
         assert low < high, key
         assert "." in key and dimension in ("length", "area", "force", "pressure", "angle", "fraction",
-                                            "hose_expansion")
+                                            "hose_expansion", "volume_per_length")
     assert PLAUSIBLE["master.bore"][1:] == pytest.approx((0.003, 0.060))
 
 

@@ -49,7 +49,8 @@ def shop(tmp_path: Path) -> tuple[Path, Path, int]:
     shutil.copytree(ROOT / "records", tmp_path / "records")
     shutil.copytree(ROOT / "schema", tmp_path / "schema")
     records = tmp_path / "records"
-    target = records / "builds" / "2023" / "HW-0107.yaml"  # a measured demo build with a layout
+    target = next(path for path in sorted((records / "builds").rglob("HW-*.yaml"))  # a measured
+                  if "\n  layout:" in path.read_text() and "\nmeasured:" in path.read_text())  # layout
     lines = target.read_text().splitlines()
     at = next(i for i, line in enumerate(lines) if line.startswith("  layout:"))
     values = {"pivot": f"[{PIVOT[0]} mm, {PIVOT[1]} mm]", "pad": f"[{PAD[0]} mm, {PAD[1]} mm]",
@@ -58,6 +59,8 @@ def shop(tmp_path: Path) -> tuple[Path, Path, int]:
     for i in range(at + 1, at + 6):
         key = lines[i].split(":")[0].strip()
         lines[i] = f"    {key}: {values[key]}"
+    if lines[at + 6].startswith("    bore_axis:"):  # the axis from the clevis through the seat
+        del lines[at + 6]
     target.write_text("\n".join(lines) + "\n")
     return records, target, at + 1
 

@@ -21,6 +21,8 @@ from builder.cli import main
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "records"
 
+# Row 3's release point is on the pad travel the pedal really has: the master bottoms 0.304 in
+# before the 7 in stop, so 4.242 in to release is 4.242 / 6.696 = 63.3 % (by hand).
 # A small invented shop: two catalogue masters and slaves, one verified build (MC-110 with
 # SC-210) and one rejected (MC-120 with SC-210, "dragged when hot"); the hoses do not swell
 # and the fluid is stiff (10 GPa), so the hand derivation below stays short.
@@ -126,6 +128,8 @@ hose_expansion:
   braided_ptfe: 0 mL/m/MPa
   steel: 0 mL/m/MPa
 fluid_bulk_modulus: 10 GPa
+master_dead_stroke: 0 mm      # the figures below are worked by hand without lost travel
+pushrod_free_play: 0 mm
 """,
 }
 
@@ -185,7 +189,7 @@ Tried 3 masters x 3 slaves x 2 clevis holes: 18 combinations, 2 meet the shop's 
     warning, rejected before: ZZ-0102 (rejected): dragged when hot
  3. master MC-110: 1 in (25.4 mm) bore instead of 0.625 in (15.9 mm); slave SC-210: 1.125 in (28.6 mm) bore instead of 0.875 in (22.2 mm); clevis hole 2.3 in (58.4 mm) from the pivot instead of 2 in (50.8 mm)
     effort 38.9 lbf (172.9 N) at the shop default efficiency: not enough history (1 build)
-    margin +58.0 %; release at 60.6 % of pad travel
+    margin +58.0 %; release at 63.3 % of pad travel
     worst-case pressure 237 psi (1632 kPa), headroom +322.5 % to the lowest rating
     evidence: ZZ-0101
     misses: master-bottoms-early: the master bottoms 0.304 in (7.7 mm) before the pedal stop

@@ -5,28 +5,37 @@ Everything written is invented: the shop, its technicians (initials only), the v
 gearbox designation, vendor, person or part number appears.
 
 Ranges used to invent the inputs (from memory, typical of hand-built conversions; no source):
-master and slave bores 5/8 to 1 in; peak release loads about 1.3 to 4.5 kN; bearing travel
+master and slave bores 5/8 to 1 in; peak release loads about 1.25 to 4.5 kN; bearing travel
 for full release, clearance included, 7 to 10 mm; pedal ratios 4.5 to 7; pad efforts 15 to
 45 lbf; pad travel 5.5 to 7 in; lines 24 to 60 in; hoses rubber, braided PTFE or steel;
-fluids DOT 3, DOT 4, DOT 5.1.
+fluids DOT 3, DOT 4, DOT 5.1; hose lengths 10 to 20 in where a record gives one.
 
 Modules: ``catalogue`` (the invented shop rules, parts and gearbox families), ``builds`` (a
 plan per build, parts chosen, measured section and notes), ``files`` (the records as YAML
 text, written with builder.records.writer, and read back by the records loader).
 
-Measured values are made, not measured. Each build is written as the YAML record it will be,
-read back by the records loader (``builder.records.parse_build``), sized with
-``builder.engine.size_build(build, rules, efficiency=1.0)`` and then spoiled by its gearbox
-family's "true" losses (table below) plus seeded noise:
+Measured values are made, not measured, from a "car" richer than the engine. Each build is
+written as the YAML record it will be and read back by the records loader
+(``builder.records.parse_build``). The car is drawn once per build id (catalogue CAR_*):
+its real pushrod free play (0.3 to 2.2 mm, or near the record's own reading when the
+technician wrote one down), its master's dead stroke (the record's or the shop's, give or
+take 0.4 mm), its hoses' real swell (the shop's figure times e^N(0, 0.35)), a concentric
+slave's real preload (0.8 to 1.2 times the recorded one) and an unrecorded pedal-box spring
+(N(0, 3.5 N) plus N(0, 15 N/m) along the pad travel, added to any bare pedal force the
+record gives). ``builds.real_sizing`` sizes the build as the car has it
+(``size_build(..., efficiency=1.0)``); that is then spoiled by the gearbox family's "true"
+losses (table below) and seeded gauge noise:
 
-    pedal_effort          = ideal effort / FAMILY_EFFICIENCY * (1 + N(0, 0.02))
-    slave_travel          = computed slave travel * FAMILY_TRAVEL_FACTOR * (1 + N(0, 0.01))
-    pad_travel_to_release = computed pad travel to release / FAMILY_TRAVEL_FACTOR
+    pedal_effort          = car's peak effort / FAMILY_EFFICIENCY * (1 + N(0, 0.015))
+    slave_travel          = car's slave travel * FAMILY_TRAVEL_FACTOR * (1 + N(0, 0.01))
+    pad_travel_to_release = car's pad travel to release / FAMILY_TRAVEL_FACTOR
                             * (1 + N(0, 0.01)); left out when the clutch never released
-    floor_gap             = computed floor gap * (1 + N(0, 0.02)) when the engine predicts
-                            one, else 0
+    floor_gap             = car's floor gap * (1 + N(0, 0.02)) when it has one, else 0
 
-A calibration over this history should recover each family's constants within 3 %.
+The engine sizes the record with the shop's defaults, so calibration meets real model
+mismatch: its leave-one-out effort error is a few percent, not the gauge's 1.5 %, and it
+recovers each family's constants within 4 % (the car's free play averages 1.25 mm against
+the shop's 1 mm and its hoses swell 6 % more than the shop's figure on average).
 
     family  fork tip   efficiency  travel factor  invented story
     QX-5    rearward      0.86         0.94       light alloy case, ball-stud fork pivot
@@ -38,9 +47,9 @@ A calibration over this history should recover each family's constants within 3 
 
 How parts are chosen: for each build the generator tries the catalogue's master/slave pairs
 in a seeded order and keeps the first one that behaved as its record says (the "true"
-losses above decide: a measured or verified build really released with effort in range; a
-rejected build failed the way its notes say; good builds and drafts also carry no "fail"
-flag at the shop's default efficiency). Output is byte-for-byte deterministic and does not
+losses and the car above decide: a measured or verified build really released with effort
+in range and without over-stroking the fingers; a rejected build failed the way its notes
+say; good builds and drafts also carry no "fail" flag at the shop's default efficiency). Output is byte-for-byte deterministic and does not
 depend on today's date; it does depend on the engine, so regenerate with --force after a
 change to the engine's formulas (tests/test_demo.py compares byte for byte).
 """

@@ -2,6 +2,7 @@
 behave as the record says, then the measured section and the notes."""
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import math
 import random
@@ -9,12 +10,15 @@ import textwrap
 from dataclasses import dataclass
 
 from builder import model as m
-from builder.demo.catalogue import (BRACKETS, CATALOGUE, DRAFTS, EFFORT_NOISE, FAMILIES, FAMILY,
-                                    FAMILY_EFFICIENCY, FAMILY_TRAVEL_FACTOR, FLUID_WEIGHTS,
-                                    GAP_NOISE, GOOD_EFFORT_N, GOOD_OUTCOMES, GOOD_REAL_MARGIN,
-                                    HEAVY_EFFORT_N, HOSE_WEIGHTS, PARTS, REJECTED, SEED,
-                                    TECHNICIANS, TRAVEL_NOISE, CatalogueEntry, Family, Q, force,
-                                    length, q, restate, _number)
+from builder.demo.catalogue import (ANGLED_MASTER_SHARE, BRACKETS, CAR_DEAD_STROKE_SD,
+                                    CAR_FREE_PLAY, CAR_FREE_PLAY_READ, CAR_HOSE_SD, CAR_PRELOAD,
+                                    CAR_SPRING_SD, CAR_SPRING_SLOPE_SD, CATALOGUE, DRAFTS,
+                                    EFFORT_NOISE, FAMILIES, FAMILY, FAMILY_EFFICIENCY,
+                                    FAMILY_TRAVEL_FACTOR, FLUID_WEIGHTS, GAP_NOISE, GOOD_EFFORT_N,
+                                    GOOD_OUTCOMES, GOOD_REAL_MARGIN, HEAVY_EFFORT_N,
+                                    HOSE_LENGTH_SHARE, HOSE_WEIGHTS, PARTS, RECORDED_FREE_PLAY,
+                                    REJECTED, SEED, TECHNICIANS, TRAVEL_NOISE, CatalogueEntry,
+                                    Family, Q, force, length, q, restate, _number)
 from builder.demo.files import Record, Section, load
 from builder.demo.files import rules as demo_rules
 from builder.engine import Sizing, size_build
@@ -41,13 +45,19 @@ def _pedal_layout(rng: random.Random, pedal: dict, system: str, misalign_deg: fl
     chord = lean_clevis - swing / 2.0  # angle of the clevis chord below the horizontal
     axis = -chord + math.radians(rng.uniform(-2.0, 2.0) + misalign_deg)
     rod = rng.uniform(4.5, 6.0) * INCH
-    seat = (clevis[0] + rod * math.cos(axis), clevis[1] + rod * math.sin(axis))
+    angled = misalign_deg == 0.0 and rng.random() < ANGLED_MASTER_SHARE
+    bore_axis = round(math.degrees(axis) * 2.0) / 2.0  # the master's axis, as measured
+    tilt = math.radians(rng.choice((-1.0, 1.0)) * rng.uniform(1.5, 4.0)) if angled else 0.0
+    seat = (clevis[0] + rod * math.cos(axis + tilt), clevis[1] + rod * math.sin(axis + tilt))
 
     def point(p):
         return tuple(length(v, system, in_places=2, mm_places=1) for v in p)
 
-    return {"pivot": point((0.0, 0.0)), "pad": point(pad), "clevis": point(clevis),
-            "pushrod_seat": point(seat), "rotation_to_stop": q(f"{swing_deg:g} deg")}
+    drawn = {"pivot": point((0.0, 0.0)), "pad": point(pad), "clevis": point(clevis),
+             "pushrod_seat": point(seat), "rotation_to_stop": q(f"{swing_deg:g} deg")}
+    if angled:  # the pushrod meets the master at a small angle at rest
+        drawn["bore_axis"] = q(f"{bore_axis:g} deg")
+    return drawn
 
 
 def _add_layout(rng: random.Random, pedal: Section, system: str, misalign_deg: float) -> None:
@@ -65,13 +75,17 @@ def _inline_clutch(rng: random.Random, system: str, heavy: bool) -> Section:
                                 else f"{load / 1e3:.2f} kN"),
               "release_travel": length(release, system),
               "clearance": length(clearance, system)}
+    comments = {"release_load": "bench-measured on the press"}
     if heavy or rng.random() < 0.5:
-        peak, c, r = fields["release_load"], fields["clearance"].si, fields["release_travel"].si
-        shape = ((0.0, 0.0), (c + 0.3 * r, 0.87), (c + 0.6 * r, 1.0), (c + r, 0.8))
+        peak, r = fields["release_load"], fields["release_travel"].si
+        shape = ((0.0, 0.0), (0.3 * r, 0.87), (0.6 * r, 1.0), (r, 0.8))  # from first contact
         fields["load_curve"] = tuple(
             (length(x, system), q(peak.text) if k == 1.0 else _scaled(peak, k))
             for x, k in shape)
-    return Section(None, fields, {"release_load": "bench-measured on the press"})
+        if rng.random() < 0.5:  # the curve's peak is the release load
+            del fields["release_load"]
+            comments = {"load_curve": "bench-measured on the press, from first contact"}
+    return Section(None, fields, comments)
 
 
 def _scaled(load: Q, k: float) -> Q:
@@ -152,11 +166,19 @@ def _plan(rng: random.Random, ident: str, date: dt.date, status: str, family: Fa
                  else Section(rng.choice(sorted(e.id for e in CATALOGUE["pedals"]))))
         if trouble == "steep pushrod" or rng.random() < 0.3:
             _add_layout(rng, pedal, system, 35.0 if trouble == "steep pushrod" else 0.0)
+    if rng.random() < RECORDED_FREE_PLAY:  # measured at the pad with the pedal box on the car
+        play = length(rng.uniform(*CAR_FREE_PLAY), system, in_places=3, mm_places=1)
+        pedal.fields["free_play"] = play
     length_in = rng.randrange(24, 61, 2)
     line = Section(None, {
         "length": q(f"{length_in} in") if system == "imperial"
         else q(f"{round(length_in * 25.4, -1):.0f} mm"),
         "hose": _weighted(rng, HOSE_WEIGHTS), "fluid": _weighted(rng, FLUID_WEIGHTS)})
+    if line.fields["hose"] != "steel" and rng.random() < HOSE_LENGTH_SHARE:
+        hose_in = rng.randrange(10, 21, 2)
+        line.fields["hose_length"] = (q(f"{hose_in} in") if system == "imperial"
+                                      else q(f"{round(hose_in * 25.4, -1):.0f} mm"))
+        line.comments["hose_length"] = "flexible part; the rest is hard line"
     master_style = rng.choices(("part", "limiter", "inline"), (65, 10, 25))[0]
     slave_style = rng.choices(("part", "bracket", "inline"), (30, 45, 25))[0]
     if by_hand:
@@ -196,17 +218,86 @@ def _record(plan: Plan, master: Section, slave: Section) -> Record:
                   {k: sections[k] for k in order})
 
 
-def _real(sizing: Sizing, family: str) -> tuple[float, float]:
-    """(real margin, real effort N) under the family's true losses."""
+@dataclass(frozen=True)
+class Car:
+    """What the finished build really has, beyond its record (see catalogue CAR_*): drawn
+    once per build id, whatever parts are tried."""
+
+    free_play: float  # m, the pushrod's real clearance (near the record's when it gives one)
+    dead_stroke_shift: float  # m, added to the master's (or the shop's) dead stroke
+    hose_factor: float  # real hose expansion over the shop's figure
+    spring: float  # N, an unrecorded pedal-box spring force at the pad, at rest
+    spring_slope: float  # N/m, its change along the pad travel
+    preload_factor: float  # real concentric preload over the recorded one
+
+
+def _car(plan: Plan, spongy: bool = False) -> Car:
+    """The build's car; `spongy`: a car that loses more travel than most (long free play,
+    a hose that swells half as much again), tried for a build rejected for short travel
+    when no ordinary car made its parts fail that way."""
+    rng = random.Random(f"{SEED}-car-{plan.id}")
+    recorded = plan.sections["pedal"].fields.get("free_play")
+    play = (max(0.0, rng.gauss(recorded.si, CAR_FREE_PLAY_READ)) if recorded is not None
+            else rng.uniform(*CAR_FREE_PLAY))
+    car = Car(play, rng.gauss(0.0, CAR_DEAD_STROKE_SD), math.exp(rng.gauss(0.0, CAR_HOSE_SD)),
+              rng.gauss(0.0, CAR_SPRING_SD), rng.gauss(0.0, CAR_SPRING_SLOPE_SD),
+              rng.uniform(*CAR_PRELOAD))
+    if spongy:
+        car = dataclasses.replace(car, free_play=max(car.free_play, CAR_FREE_PLAY[1]),
+                                  hose_factor=1.5 * max(car.hose_factor, 1.0))
+    return car
+
+
+def _scaled_expansion(expansion, factor: float):
+    if isinstance(expansion, tuple):
+        return tuple((p, v * factor) for p, v in expansion)
+    return expansion * factor
+
+
+def real_sizing(build: m.Build, rules: m.ShopRules, car: Car) -> Sizing:
+    """The build as the car has it, sized with no friction: its real free play, dead stroke,
+    hose expansion, concentric preload and pedal-box springs (added to any the record gives
+    as a bare pedal force)."""
+    dead = rules.master_dead_stroke if build.master.dead_stroke is None else build.master.dead_stroke
+    travel = build.pedal.pad_travel
+    bare = build.pedal.bare_effort or ((0.0, 0.0), (travel, 0.0))
+    ends = sorted({0.0, travel, *(x for x, _ in bare)})
+    springs = tuple((x, _read(bare, x) + car.spring + car.spring_slope * x) for x in ends)
+    slave = build.slave
+    if slave.preload is not None:
+        slave = dataclasses.replace(slave, preload=slave.preload * car.preload_factor)
+    real = dataclasses.replace(
+        build, slave=slave,
+        master=dataclasses.replace(build.master, dead_stroke=max(0.0, dead + car.dead_stroke_shift)),
+        pedal=dataclasses.replace(build.pedal, free_play=car.free_play, bare_effort=springs))
+    hoses = {kind: _scaled_expansion(value, car.hose_factor)
+             for kind, value in rules.hose_expansion.items()}
+    return size_build(real, dataclasses.replace(rules, hose_expansion=hoses), efficiency=1.0,
+                      with_curve=False)
+
+
+def _read(points, x: float) -> float:
+    """A table of points read with straight lines between, flat past the ends."""
+    if x <= points[0][0]:
+        return points[0][1]
+    for (x0, y0), (x1, y1) in zip(points, points[1:]):
+        if x <= x1:
+            return y0 + (y1 - y0) * (x - x0) / (x1 - x0)
+    return points[-1][1]
+
+
+def _real(real: Sizing, family: str) -> tuple[float, float]:
+    """(real margin, real effort N): the car's sizing under the family's true losses."""
     factor = FAMILY_TRAVEL_FACTOR[family]
-    return factor * (1.0 + sizing.margin) - 1.0, sizing.effort_ideal / FAMILY_EFFICIENCY[family]
+    return factor * (1.0 + real.margin) - 1.0, real.effort_ideal / FAMILY_EFFICIENCY[family]
 
 
-def _fits(plan: Plan, sizing: Sizing) -> bool:
-    """Whether a sizing behaves the way the plan's record says it did (or will)."""
+def _fits(plan: Plan, sizing: Sizing, real: Sizing) -> bool:
+    """Whether a sizing behaves the way the plan's record says it did (or will): `sizing` is
+    what the engine makes of the record, `real` what the car does."""
     fails = any(f.severity == "fail" for f in sizing.flags)
     warns = {f.code for f in sizing.flags}
-    margin, effort = _real(sizing, plan.family.code)
+    margin, effort = _real(real, plan.family.code)
     trouble = plan.trouble
     if trouble == "travel":
         return 0.01 <= sizing.margin <= 0.10 and margin < -0.005 and not sizing.floor_gap
@@ -215,6 +306,8 @@ def _fits(plan: Plan, sizing: Sizing) -> bool:
                 and GOOD_REAL_MARGIN <= margin and sizing.margin <= 0.9)
     if trouble == "bottoms":
         return sizing.floor_gap >= 0.6 * INCH and margin < 0.0 and sizing.margin > -0.08
+    if any(f.severity == "fail" for f in real.flags if f.code == "over-stroke"):
+        return False  # the fingers would have over-stroked on the car
     if trouble == "steep pushrod":
         return "pushrod-off-axis" in warns and not fails
     return (not fails and margin >= GOOD_REAL_MARGIN and sizing.margin <= 0.9
@@ -222,7 +315,8 @@ def _fits(plan: Plan, sizing: Sizing) -> bool:
             and "release-late" not in warns)
 
 
-def _choose(plan: Plan, rng: random.Random, rules: m.ShopRules) -> tuple[Record, Sizing] | None:
+def _choose(plan: Plan, rng: random.Random, rules: m.ShopRules,
+            car: Car) -> tuple[Record, Sizing] | None:
     """Try catalogue master/slave pairs in a seeded order; keep the first that fits."""
     kind = "external" if plan.family.forks else "concentric"
     pairs = [(mc, sc) for mc in CATALOGUE["masters"] for sc in CATALOGUE["slaves"]
@@ -230,8 +324,9 @@ def _choose(plan: Plan, rng: random.Random, rules: m.ShopRules) -> tuple[Record,
     rng.shuffle(pairs)
     for mc, sc in pairs:
         rec = _record(plan, _master_section(plan, mc), _slave_section(plan, sc, rng))
-        sizing = size_build(load(rec), rules)
-        if _fits(plan, sizing):
+        build = load(rec)
+        sizing = size_build(build, rules)
+        if _fits(plan, sizing, real_sizing(build, rules, car)):
             return rec, sizing
     return None
 
@@ -257,11 +352,12 @@ def _schedule(rng: random.Random) -> list[tuple[str, dt.date, str, str, str]]:
     return [(f"HW-{101 + n:04d}", *row) for n, row in enumerate(rows)]
 
 
-def _measure(rec: Record, rules: m.ShopRules) -> dict:
-    """The measured section: the engine's ideal numbers spoiled by the family's true losses."""
+def _measure(rec: Record, rules: m.ShopRules, car: Car) -> dict:
+    """The measured section: what the car does, under the family's true losses, read with
+    the gauges' noise."""
     rng = random.Random(f"{SEED}-{rec.id}")
     build = load(rec)
-    ideal = size_build(build, rules, efficiency=1.0)
+    ideal = real_sizing(build, rules, car)
     family = rec.family
     eff, factor = FAMILY_EFFICIENCY[family], FAMILY_TRAVEL_FACTOR[family]
     system, method = TECHNICIANS[rec.technician]
@@ -273,7 +369,7 @@ def _measure(rec: Record, rules: m.ShopRules) -> dict:
                 "slave_travel": length(slave, system, 3, 1)}
     if ideal.pad_travel_to_release is not None:
         release = ideal.pad_travel_to_release / factor * release_noise
-        if release < build.pedal.pad_travel - ideal.floor_gap:
+        if release < ideal.usable_pad_travel:
             measured["pad_travel_to_release"] = length(release, system, 1, 0)
     measured["floor_gap"] = length(gap, system, 2, 0)  # "0 in" / "0 mm" when none
     measured["method"] = method
@@ -328,18 +424,19 @@ def invent(rng: random.Random, rules: m.ShopRules, ident: str, date: dt.date, st
 
     enrich(plan, rng), when given, may change each plan before its master and slave are chosen.
     """
-    for _ in range(60):
+    for attempt in range(120 if trouble == "travel" else 60):
         plan = _plan(rng, ident, date, status, FAMILY[family], trouble)
         if enrich is not None:
             enrich(plan, rng)
-        chosen = _choose(plan, rng, rules)
+        car = _car(plan, spongy=attempt >= 60)
+        chosen = _choose(plan, rng, rules, car)
         if chosen:
             break
     else:
         raise RuntimeError(f"{ident}: no catalogue pair fits a {family} '{trouble}' build")
     rec, sizing = chosen
     if status != "draft":
-        rec.measured = _measure(rec, rules)
+        rec.measured = _measure(rec, rules, car)
     rec.outcome, notes = _notes(rec, sizing, trouble, rng)
     rec.notes = "\n".join(textwrap.wrap(notes, 88)) + "\n"  # as the block scalar reads
     return rec, sizing

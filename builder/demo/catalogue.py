@@ -15,9 +15,24 @@ FAMILY_EFFICIENCY = {
 FAMILY_TRAVEL_FACTOR = {
     "QX-5": 0.94, "VK-4": 0.90, "JH-5R": 0.96, "BQ-4F": 0.88, "ZW-6": 0.93, "YC-6": 0.97,
 }
-EFFORT_NOISE = 0.02  # standard deviation, fraction
-TRAVEL_NOISE = 0.01  # standard deviation, fraction
+EFFORT_NOISE = 0.015  # force gauge, standard deviation, fraction
+TRAVEL_NOISE = 0.01  # dial gauge or tape, standard deviation, fraction
 GAP_NOISE = 0.02  # standard deviation, fraction
+
+# The "car": what a finished build really has, which its record does not say (or says only
+# roughly). Drawn per build around the shop's defaults (from memory, typical of hand-built
+# conversions; no source). The engine sizes the record; the measured section comes from the
+# car, so calibration meets real model mismatch.
+CAR_FREE_PLAY = (0.3e-3, 2.2e-3)  # m, uniform: the pushrod's real clearance (shop says 1 mm)
+CAR_FREE_PLAY_READ = 0.15e-3  # m, sd of a technician's own free play reading
+CAR_DEAD_STROKE_SD = 0.4e-3  # m, sd around the master's (or the shop's) dead stroke
+CAR_HOSE_SD = 0.35  # sd of the log of the real hose expansion over the shop's figure
+CAR_SPRING_SD = 3.5  # N, sd of an unrecorded pedal-box spring force at the pad (mean 0)
+CAR_SPRING_SLOPE_SD = 15.0  # N/m, sd of how that spring force changes along the pad travel
+CAR_PRELOAD = (0.8, 1.2)  # uniform factor on a concentric slave's recorded preload
+RECORDED_FREE_PLAY = 0.25  # share of builds whose technician recorded the free play
+HOSE_LENGTH_SHARE = 0.45  # share of lines whose record gives the flexible length
+ANGLED_MASTER_SHARE = 0.4  # share of pedal layouts whose record gives the bore axis
 
 
 # What a good build must have shown on the car (the "true" losses applied), and what the
@@ -80,26 +95,33 @@ SHOP = {
     "min_travel_margin": q("10 %"),
     "latest_release_point": q("85 %"),
     "default_efficiency": q("85 %"),
+    "max_travel_margin": q("90 %"),
     "hose_expansion": {
-        "rubber": q("0.08 mL/m/MPa"),
-        "braided_ptfe": q("0.02 mL/m/MPa"),
+        "rubber": ((q("1000 psi"), q("0.66 cc/ft")), (q("1500 psi"), q("0.79 cc/ft"))),
+        "braided_ptfe": q("0.03 mL/m/MPa"),
         "steel": q("0.004 mL/m/MPa"),
     },
-    "fluid_bulk_modulus": q("1.7 GPa"),
+    "fluid_bulk_modulus": {"DOT 3": q("1.7 GPa"), "DOT 4": q("1.7 GPa"), "DOT 5": q("1.0 GPa"),
+                           "DOT 5.1": q("1.7 GPa")},
     "line_bore": q("3/16 in"),
     "max_pushrod_angle": q("5 deg"),
     "publish": ["measured", "verified", "rejected"],
+    "master_dead_stroke": q("1.5 mm"),
+    "pushrod_free_play": q("1 mm"),
 }
 SHOP_COMMENTS = {
     "display_units": "imperial | metric; both are always shown",
     "effort_band": "target pedal effort at the pad",
     "min_travel_margin": "bearing travel over what full release needs",
-    "latest_release_point": "of pad travel",
+    "max_travel_margin": "more than this and the fingers are pushed further than needed",
+    "latest_release_point": "of the pad travel the pedal has",
     "default_efficiency": "until the shop's history calibrates it",
-    "hose_expansion": "volume growth per metre of hose per MPa (from memory)",
-    "fluid_bulk_modulus": "glycol brake fluid, from memory",
+    "hose_expansion": "rubber: FMVSS 106 ceiling for 1/8 in hose (from memory)",
+    "fluid_bulk_modulus": "silicone DOT 5 is softer than glycol (from memory)",
     "line_bore": "inner diameter of the hard line",
     "publish": "on the published site; drafts only with --include-drafts",
+    "master_dead_stroke": "before the port closes, when a master gives none (from memory)",
+    "pushrod_free_play": "at the master, when a pedal gives none (from memory)",
 }
 
 
@@ -141,14 +163,13 @@ CATALOGUE = {
     "clutches": _entries("clutches", [
         ("CL-410", "9.5 in diaphragm, street",
          {"release_load": q("340 lbf"), "release_travel": q("0.28 in"),
-          "clearance": q("0.05 in"),
-          "load_curve": _curve("0 in, 0 lbf", "0.12 in, 300 lbf", "0.22 in, 340 lbf",
-                               "0.33 in, 285 lbf")}),
-        ("CL-420", "10.5 in diaphragm, street",
-         {"release_load": q("395 lbf"), "release_travel": q("0.29 in"),
-          "clearance": q("0.06 in"),
-          "load_curve": _curve("0 in, 0 lbf", "0.13 in, 350 lbf", "0.24 in, 395 lbf",
-                               "0.35 in, 330 lbf")}),
+          "clearance": q("0.05 in"), "max_release_travel": q("0.42 in"),
+          "load_curve": _curve("0 in, 0 lbf", "0.10 in, 300 lbf", "0.17 in, 340 lbf",
+                               "0.28 in, 285 lbf")}),
+        ("CL-420", "10.5 in diaphragm, street; release load is the curve's peak",
+         {"release_travel": q("0.29 in"), "clearance": q("0.06 in"),
+          "load_curve": _curve("0 in, 0 lbf", "0.10 in, 350 lbf", "0.18 in, 395 lbf",
+                               "0.29 in, 330 lbf")}),
         ("CL-430", "230 mm diaphragm, organic disc",
          {"release_load": q("1.45 kN"), "release_travel": q("7.0 mm"),
           "clearance": q("1.2 mm")}),
@@ -157,7 +178,7 @@ CATALOGUE = {
           "clearance": q("0.05 in")}),
         ("CL-450", "240 mm diaphragm, performance",
          {"release_load": q("1.95 kN"), "release_travel": q("7.5 mm"),
-          "clearance": q("1.0 mm")}),
+          "clearance": q("1.0 mm"), "max_release_travel": q("11 mm")}),
         ("CL-460", "10 in diaphragm, light pressure plate",
          {"release_load": q("300 lbf"), "release_travel": q("0.27 in"),
           "clearance": q("0.05 in")}),
@@ -170,16 +191,18 @@ CATALOGUE = {
         ("MC-A3", "3/4 in bore, integral reservoir",
          {"bore": q("3/4 in"), "stroke": q("1.40 in"), "rated_pressure": q("1200 psi")}),
         ("MC-A4", "19.05 mm bore, short body, push-in hose",
-         {"bore": q("19.05 mm"), "stroke": q("32 mm"), "rated_pressure": q("8 MPa")}),
+         {"bore": q("19.05 mm"), "stroke": q("32 mm"), "rated_pressure": q("8 MPa"),
+          "dead_stroke": q("1.0 mm")}),
         ("MC-A5", "20.6 mm bore, side-port reservoir",
          {"bore": q("20.6 mm"), "stroke": q("30 mm"), "rated_pressure": q("8 MPa")}),
         ("MC-A6", "7/8 in bore, remote reservoir",
          {"bore": q("7/8 in"), "stroke": q("1.25 in"), "rated_pressure": q("1000 psi")}),
-        ("MC-A7", "1 in bore, heavy duty",
-         {"bore": q("1 in"), "stroke": q("1.10 in"), "rated_pressure": q("1000 psi")}),
+        ("MC-A7", "1 in bore, heavy duty, centre valve",
+         {"bore": q("1 in"), "stroke": q("1.10 in"), "rated_pressure": q("1000 psi"),
+          "dead_stroke": q("0.08 in")}),
     ]),
     "slaves": _entries("slaves", [
-        ("SC-B1", "3/4 in bore, pull-type rod end",
+        ("SC-B1", "3/4 in bore, rod-end eye",
          {"kind": "external", "bore": q("3/4 in"), "stroke": q("1.10 in"),
           "rated_pressure": q("1000 psi")}),
         ("SC-B2", "13/16 in bore, adjustable rod",
@@ -194,26 +217,31 @@ CATALOGUE = {
         ("SC-B5", "1 in bore, short body",
          {"kind": "external", "bore": q("1 in"), "stroke": q("1.00 in"),
           "rated_pressure": q("900 psi")}),
+        ("SC-B6", "1 in bore pull slave, 3/8 in rod through the fluid side",
+         {"kind": "external", "acts": "pull", "bore": q("1 in"), "rod_diameter": q("3/8 in"),
+          "stroke": q("1.20 in"), "rated_pressure": q("1000 psi")}),
         ("CS-C1", "concentric slave, 690 mm^2 annular piston",
          {"kind": "concentric", "piston_area": q("690 mm^2"), "stroke": q("16 mm"),
-          "rated_pressure": q("6 MPa")}),
+          "rated_pressure": q("6 MPa"), "preload": q("90 N")}),
         ("CS-C2", "concentric slave, 1.05 in^2 annular piston, bleed extension",
          {"kind": "concentric", "piston_area": q("1.05 in^2"), "stroke": q("0.75 in"),
-          "rated_pressure": q("900 psi")}),
+          "rated_pressure": q("900 psi"), "preload": q("25 lbf")}),
     ]),
     "pedals": _entries("pedals", [
         ("PD-301", "hanging pedal box, bolt-in, over-centre spring removed",
          {"pivot_to_pad": q("11.25 in"), "pivot_to_clevis": q("1.90 in"),
-          "pad_travel": q("6.0 in"), "pushrod": "spherical end, lock nut"}),
+          "pad_travel": q("6.0 in"), "pushrod": "spherical end, lock nut",
+          "bare_effort": _curve("0 in, 3 lbf", "6 in, 5 lbf")}),
         ("PD-302", "hanging pedal, fabricated arm",
          {"pivot_to_pad": q("280 mm"), "pivot_to_clevis": q("50 mm"),
           "pad_travel": q("150 mm"), "pushrod": "clevis pin, adjustable rod"}),
         ("PD-303", "hanging pedal, short arm, light-duty bracket",
          {"pivot_to_pad": q("10.5 in"), "pivot_to_clevis": q("2.25 in"),
           "pad_travel": q("5.75 in"), "pushrod": "clevis pin, adjustable rod"}),
-        ("PD-304", "tall hanging pedal, long travel",
+        ("PD-304", "tall hanging pedal, long travel, over-centre assist spring",
          {"pivot_to_pad": q("12.0 in"), "pivot_to_clevis": q("1.85 in"),
-          "pad_travel": q("6.75 in"), "pushrod": "spherical end, lock nut"}),
+          "pad_travel": q("6.75 in"), "pushrod": "spherical end, lock nut",
+          "bare_effort": _curve("0 in, 6 lbf", "3 in, 1 lbf", "6.75 in, -7 lbf")}),
     ]),
 }
 PARTS = {e.id: e for entries in CATALOGUE.values() for e in entries}

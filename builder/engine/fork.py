@@ -8,8 +8,12 @@ from builder.model import Fork
 def fork_ratio(fork: Fork | None) -> float:
     """Fork ratio R_f = pivot-to-slave / pivot-to-bearing; 1 for a concentric slave.
 
-    Lengths in m; returns a plain ratio (bearing force / slave force). Source:
-    Shigley's Mechanical Engineering Design, static equilibrium of a lever.
+    Lengths in m (> 0); returns a plain ratio (bearing force / slave force). Valid for
+    small fork swings (the lengths measured square to the pushrod and the bearing's
+    travel). Source: Shigley's Mechanical Engineering Design, static equilibrium of a lever.
+
+    >>> fork_ratio(Fork(0.140, 0.070)), fork_ratio(None)
+    (2.0, 1.0)
     """
     if fork is None:
         return 1.0

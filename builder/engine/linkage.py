@@ -13,6 +13,9 @@ from builder.engine.result import LinkagePose
 from builder.model import PedalLayout
 
 SWEEP_SAMPLES = 96  # layout mode: poses computed through the swing
+_MOST_OFF_AXIS = 0.999  # sin of the largest pushrod angle to the bore axis at rest (~87 deg)
+
+
 # The instantaneous ratio a layout may reach anywhere in its swing: the extremes a two-length
 # pedal can have within the plausible lengths (50 mm / 300 mm to 1000 mm / 5 mm). Beyond them
 # the linkage is at or beside a dead centre and its figures mean nothing.
@@ -21,10 +24,10 @@ RATIO_RANGE = (50.0 / 300.0, 1000.0 / 5.0)
 
 class GeometryError(ValueError):
     """A pedal the engine cannot work. `reason` is a code of ours, worded by
-    builder.presentation: "points-coincide", "pushrod-along-crank", "no-lengths",
-    "dead-centre" or "ratio-out-of-range". `angle` (rad) is where in the swing it fails,
-    `swing` (rad) the swing to the stop, `ratio` the instantaneous ratio there and `bounds`
-    the ratios allowed, when known.
+    builder.presentation: "points-coincide", "pushrod-along-crank", "axis-across-pushrod",
+    "no-lengths", "dead-centre" or "ratio-out-of-range". `angle` (rad) is where in the swing
+    it fails, `swing` (rad) the swing to the stop, `ratio` the instantaneous ratio there and
+    `bounds` the ratios allowed, when known.
     """
 
     def __init__(self, reason: str, angle: float | None = None, swing: float | None = None,
@@ -38,8 +41,12 @@ def lever_ratio(arm_out: float, arm_in: float) -> float:
     """Mechanical advantage of a lever, R = a / b (force out / force in, inverted travel).
 
     arm_out a: pivot to where the force is applied (pad), m; arm_in b: pivot to where
-    the force is delivered (clevis), m. Source: Shigley's Mechanical Engineering Design,
-    static equilibrium of a lever (moments about the pivot).
+    the force is delivered (clevis), m (both > 0). Valid for small swings with the
+    pushrod square to the arm (layout mode covers the rest). Source: Shigley's Mechanical
+    Engineering Design, static equilibrium of a lever (moments about the pivot).
+
+    >>> lever_ratio(0.28575, 0.0508)
+    5.625
     """
     return arm_out / arm_in
 
@@ -49,6 +56,9 @@ def arc_length(radius: float, angle: float) -> float:
 
     radius r in m, angle theta in rad; returns m. Source: OpenStax College Physics,
     "Rotation Angle and Angular Velocity" (arc length).
+
+    >>> round(arc_length(0.3, 0.5235987756), 6)  # 30 deg on 300 mm
+    0.15708
     """
     return radius * angle
 
@@ -57,7 +67,14 @@ SCHEMATIC_ROD = 0.45  # pushrod drawn this fraction of pivot-to-pad long in simp
 
 
 class LeverPedal:
-    """Simple mode: constant ratio pivot-to-pad / pivot-to-clevis (Shigley, levers)."""
+    """Simple mode: constant ratio R_p = pivot-to-pad / pivot-to-clevis (Shigley, levers);
+    pad travel x_pad = R_p * s for a pushrod travel s (m). Valid for small swings with the
+    pushrod square to the arm; layout mode covers the rest.
+
+    >>> pedal = LeverPedal(0.28, 0.05, 0.15)
+    >>> [round(v, 6) for v in pedal.at_stroke(0.02)], round(pedal.stroke_at_stop, 6)
+    ([0.112, 5.6], 0.026786)
+    """
 
     mode = "simple"
     __slots__ = ("ratio", "pad_travel_at_stop", "stroke_at_stop", "to_pad", "to_clevis")
@@ -74,6 +91,7 @@ class LeverPedal:
         return stroke * self.ratio, self.ratio
 
     def pushrod_angle_max(self, stroke_used: float) -> float | None:
+        """Not modelled for a lever (None)."""
         return None
 
     def sweep(self) -> tuple[tuple[float, float, float, float], ...]:
@@ -105,15 +123,25 @@ class LeverPedal:
 class SliderCrankPedal:
     """Layout mode: pedal = crank about the pivot, pushrod = coupler, master piston = slider.
 
+    The bore axis runs through the pushrod seat, along layout.bore_axis when the record
+    gives it, else from the clevis at rest through the seat; the pushrod length is
+    |seat - clevis| at rest. Rotating the crank by theta (the sense that pushes the master
+    in) moves the seat along the axis by s(theta) (the pushrod end's travel: free play
+    and dead stroke are the caller's). Position analysis of the offset slider-crank:
+    Norton, Design of Machinery, x = r cos t + sqrt(l^2 - (r sin t - e)^2), written here
+    in the record's own frame.
+
     The swing from rest to the stop must push the master in all the way: a dead centre
     (toggle) inside it, a pushrod that cannot stay on the axis, or an instantaneous ratio
     outside RATIO_RANGE raises GeometryError.
 
-    The bore axis runs from the clevis at rest through the pushrod seat; the pushrod
-    length is |seat - clevis| at rest. Rotating the crank by theta (the sense that
-    pushes the master in) moves the seat along the axis by s(theta). Position analysis
-    of the offset slider-crank: Norton, Design of Machinery, x = r cos t + sqrt(l^2 -
-    (r sin t - e)^2), written here in the record's own frame.
+    A 280 mm pedal, clevis 50 mm below the pivot, a 140 mm pushrod square to it: 10 deg
+    moves the seat 50 sin(10 deg) - (140 - sqrt(140^2 - (50 (1 - cos 10 deg))^2)) =
+    8.68 mm (Norton's closed form, by hand).
+
+    >>> pedal = SliderCrankPedal(PedalLayout((0, 0), (0, -0.28), (0, -0.05), (0.14, -0.05), 0.5236))
+    >>> round(pedal.state(math.radians(10))[0] * 1e3, 2), round(pedal.at_stroke(0.005)[1], 3)
+    (8.68, 5.629)
     """
 
     mode = "layout"
@@ -129,13 +157,27 @@ class SliderCrankPedal:
         crank_radius = math.hypot(*crank)
         if self.rod <= 0.0 or crank_radius <= 0.0 or self.pad_radius <= 0.0:
             raise GeometryError("points-coincide")
-        self.axis = ((sx - cx) / self.rod, (sy - cy) / self.rod)
-        rate_ccw = -crank[1] * self.axis[0] + crank[0] * self.axis[1]
+        rod_dir = ((sx - cx) / self.rod, (sy - cy) / self.rod)
+        if layout.bore_axis is None:
+            self.axis = rod_dir
+        else:  # the given direction, turned to point from the clevis side into the master
+            ux, uy = math.cos(layout.bore_axis), math.sin(layout.bore_axis)
+            flip = -1.0 if ux * rod_dir[0] + uy * rod_dir[1] < 0.0 else 1.0
+            self.axis = (flip * ux, flip * uy)
+        # h0 = u x (clevis - seat): the clevis's offset from the bore axis at rest
+        self._offset0 = self.axis[0] * (cy - sy) - self.axis[1] * (cx - sx)
+        if abs(self._offset0) >= self.rod * _MOST_OFF_AXIS:
+            raise GeometryError("axis-across-pushrod")
+        self._rest_along = math.sqrt(self.rod * self.rod - self._offset0 * self._offset0)
+        self._crank0, self._crank2 = crank, crank[0] ** 2 + crank[1] ** 2
+        # which side of the line pivot -> seat the clevis sits on at rest (+1 left, -1 right)
+        self._side = 1.0 if (sx - px) * crank[1] - (sy - py) * crank[0] > 0.0 else -1.0
+        self._along0 = crank[0] * self.axis[0] + crank[1] * self.axis[1]  # k0 . u
+        self._across0 = self.axis[0] * crank[1] - self.axis[1] * crank[0]  # u x k0
+        rate_ccw = -self._across0 - self._offset0 * self._along0 / self._rest_along
         if abs(rate_ccw) < 1e-6 * crank_radius:
             raise GeometryError("pushrod-along-crank")
         self.sense = 1.0 if rate_ccw > 0.0 else -1.0
-        self._along0 = crank[0] * self.axis[0] + crank[1] * self.axis[1]  # k0 . u
-        self._across0 = self.axis[0] * crank[1] - self.axis[1] * crank[0]  # u x k0
         self.stop_angle = layout.rotation_to_stop
         self.pad_travel_at_stop = arc_length(self.pad_radius, self.stop_angle)
         self._build_table()
@@ -149,20 +191,22 @@ class SliderCrankPedal:
     def states(self, thetas) -> list[tuple[float, float, float] | None]:
         """state() at each crank angle theta (rad), in one loop.
 
-        Seat on the axis at x with |x u - d| = l, d = clevis displacement:
-        x = a + sqrt(l^2 - h^2), a = d.u, h = u x d; s = x - l;
-        ds/dtheta = a' - h h' / sqrt(l^2 - h^2). Norton, Design of Machinery,
-        slider-crank position and velocity analysis. The crank k0 turned by t = sense *
-        theta gives, with a0 = k0.u and b0 = u x k0 (rotation of a vector):
-        a = a0 (cos t - 1) - b0 sin t, h = b0 (cos t - 1) + a0 sin t,
+        Seat on the axis at x (from its rest place) with |x u - w| = l, w = clevis - seat
+        at rest + d, d = clevis displacement: x = a + sqrt(l^2 - h^2) - sqrt(l^2 - h0^2),
+        a = d.u, h = h0 + u x d, h0 = u x (clevis - seat) at rest (0 when the axis runs
+        through the clevis); s = x; ds/dtheta = a' - h h' / sqrt(l^2 - h^2). Norton,
+        Design of Machinery, slider-crank position and velocity analysis. The crank k0
+        turned by t = sense * theta gives, with a0 = k0.u and b0 = u x k0 (rotation of a
+        vector): a = a0 (cos t - 1) - b0 sin t, h = h0 + b0 (cos t - 1) + a0 sin t,
         a' = -sense (a0 sin t + b0 cos t), h' = sense (a0 cos t - b0 sin t).
         """
         sense, rod, a0, b0 = self.sense, self.rod, self._along0, self._across0
+        h0, rest = self._offset0, self._rest_along
         cos, sin, sqrt = math.cos, math.sin, math.sqrt
         found = []
         for theta in thetas:
             cos_t, sin_t = cos(theta), sense * sin(theta)
-            offset = b0 * (cos_t - 1.0) + a0 * sin_t
+            offset = h0 + b0 * (cos_t - 1.0) + a0 * sin_t
             room = rod * rod - offset * offset
             if room <= 0.0:
                 found.append(None)
@@ -170,7 +214,7 @@ class SliderCrankPedal:
             root = sqrt(room)
             along = a0 * (cos_t - 1.0) - b0 * sin_t
             rate = -sense * (a0 * sin_t + b0 * cos_t) - offset * sense * (a0 * cos_t - b0 * sin_t) / root
-            found.append((along + root - rod, rate, offset))
+            found.append((along + root - rest, rate, offset))
         return found
 
     def _pushes(self, theta: float) -> bool:
@@ -195,30 +239,32 @@ class SliderCrankPedal:
         self._strokes = [st[0] for st in states]
         self._states = states
         self._sweep = tuple(  # arc_length and pushrod_angle written out: this runs for every sample
-            (pad * t, s, pad / rate, asin(min(1.0, abs(offset) / rod)))
+            (pad * t, s, pad / rate, asin(abs(offset) / rod))
             for t, (s, rate, offset) in zip(thetas, states)
         )
 
     def solve(self, stroke: float) -> tuple[float, tuple[float, float, float]]:
-        """(crank angle rad, state) where the master has moved `stroke` (m): Newton's
-        method on s(theta) - stroke, started inside a bracket from the sampled swing."""
-        strokes, thetas = self._strokes, self._thetas
+        """(crank angle rad, state) where the pushrod has moved `stroke` (m) along the axis,
+        clamped to the swing: the clevis is where the crank circle (radius r about the
+        pivot) meets the circle of the pushrod's length l about the seat's new place,
+        S = seat + s u. Circle-circle intersection (any analytic geometry text; Norton,
+        Design of Machinery, solves the slider-crank's position the same way): with
+        d = |S - P|, a = (r^2 - l^2 + d^2) / 2d, h = sqrt(r^2 - a^2), the clevis is at
+        P + a (S - P) / d +- h n, on the side of P-S where it was at rest (a swing that
+        crosses it is refused when the pedal is made)."""
         if stroke <= 0.0:
             return 0.0, self._states[0]
-        if stroke >= strokes[-1]:
-            return thetas[-1], self._states[-1]
-        i = bisect.bisect_right(strokes, stroke)
-        lo, hi = thetas[i - 1], thetas[i]
-        s_lo, s_hi = strokes[i - 1], strokes[i]
-        theta = lo + (hi - lo) * (stroke - s_lo) / (s_hi - s_lo)
-        for _ in range(8):
-            state = self.state(theta)
-            if not _pushing(state):  # a dead centre between two samples of the swing
-                raise GeometryError("dead-centre", angle=theta, swing=self.stop_angle)
-            if abs(state[0] - stroke) < 1e-12:
-                break
-            theta = min(max(theta - (state[0] - stroke) / state[1], lo), hi)
-        return theta, state
+        if stroke >= self._strokes[-1]:
+            return self._thetas[-1], self._states[-1]
+        (px, py), (sx, sy) = self.layout.pivot, self.layout.pushrod_seat
+        dx, dy = sx + stroke * self.axis[0] - px, sy + stroke * self.axis[1] - py
+        d = math.hypot(dx, dy)
+        a = (self._crank2 - self.rod * self.rod + d * d) / (2.0 * d)
+        h = self._side * math.sqrt(self._crank2 - a * a)
+        kx, ky = (a * dx - h * dy) / d, (a * dy + h * dx) / d  # crank, pivot to clevis
+        k0x, k0y = self._crank0
+        theta = self.sense * math.atan2(k0x * ky - k0y * kx, k0x * kx + k0y * ky)
+        return theta, self.state(theta)
 
     def at_stroke(self, stroke: float) -> tuple[float, float]:
         """(pad travel along its arc r_pad * theta in m, instantaneous ratio
@@ -227,8 +273,15 @@ class SliderCrankPedal:
         return arc_length(self.pad_radius, theta), self.pad_radius / state[1]
 
     def pushrod_angle(self, offset: float) -> float:
-        """Pushrod angle to the bore axis, asin(|h| / l) (rad)."""
-        return math.asin(min(1.0, abs(offset) / self.rod))
+        """Pushrod angle to the bore axis, phi = asin(|h| / l) (rad): h the clevis's offset
+        from the axis (m), l the pushrod length (m). Norton, Design of Machinery,
+        slider-crank coupler angle.
+
+        >>> pedal = SliderCrankPedal(PedalLayout((0, 0), (0, -0.28), (0, -0.05), (0.14, -0.05), 0.5))
+        >>> round(math.degrees(pedal.pushrod_angle(0.01)), 3)  # asin(10 / 140)
+        4.096
+        """
+        return math.asin(abs(offset) / self.rod)  # |h| < l wherever the pushrod reaches
 
     def pushrod_angle_max(self, stroke_used: float) -> float:
         """Largest pushrod angle to the bore axis over the used swing (rad): the sampled
@@ -247,14 +300,13 @@ class SliderCrankPedal:
         lay = self.layout
         turn = self.sense * theta
         stroke = self.state(theta)[0]
-        seat_from_clevis = self.rod + stroke
         return LinkagePose(
             pivot=lay.pivot,
             pad=_rotate(lay.pad, lay.pivot, turn),
             clevis=_rotate(lay.clevis, lay.pivot, turn),
             pushrod_seat=(
-                lay.clevis[0] + seat_from_clevis * self.axis[0],
-                lay.clevis[1] + seat_from_clevis * self.axis[1],
+                lay.pushrod_seat[0] + stroke * self.axis[0],
+                lay.pushrod_seat[1] + stroke * self.axis[1],
             ),
         )
 
@@ -275,7 +327,12 @@ def _spaced(end: float) -> list[float]:
 
 def _rotate(point: tuple[float, float], centre: tuple[float, float],
             angle: float) -> tuple[float, float]:
-    """Rotate a point about a centre by angle (rad, counter-clockwise)."""
+    """Rotate a point about a centre by angle (rad, counter-clockwise): the rotation
+    matrix [[cos, -sin], [sin, cos]] (any linear algebra text).
+
+    >>> [round(v, 12) for v in _rotate((1.0, 0.0), (0.0, 0.0), math.pi / 2)]
+    [0.0, 1.0]
+    """
     dx, dy = point[0] - centre[0], point[1] - centre[1]
     cos_a, sin_a = math.cos(angle), math.sin(angle)
     return (centre[0] + dx * cos_a - dy * sin_a, centre[1] + dx * sin_a + dy * cos_a)

@@ -61,30 +61,30 @@ class Linkage:
 class Sizing:
     build_id: str
     # ratios
-    ratio_pedal: float
+    ratio_pedal: float  # instantaneous, where the headline effort is taken
     ratio_hydraulic: float
     ratio_fork: float
     ratio_overall: float
     # effort, N
     efficiency: float  # the one used for effort_predicted
-    effort_ideal: float
+    effort_ideal: float  # peak over the stroke of the pad force, no friction
     effort_predicted: float
     # areas m^2
     master_area: float
     slave_area: float
     # travel, m (fractions where named so)
-    master_stroke_used: float
+    master_stroke_used: float  # piston travel at the stop (or its full stroke when it bottoms)
     slave_travel: float
     slave_overtravel: bool  # slave stroke capped the travel
     bearing_travel: float
     needed_bearing_travel: float
     margin: float  # fraction: bearing_travel / needed - 1
-    release_point: float | None  # fraction of pad travel; None when it never releases
+    release_point: float | None  # fraction of the usable pad travel; None: never releases
     pad_travel_to_release: float | None  # m
     # pressure, Pa
-    pressure: float
+    pressure: float  # static, at the peak load (the fluid's share of it)
     # volumes, m^3
-    master_swept_volume: float  # A_master * full master stroke
+    master_swept_volume: float  # A_master * (full stroke - dead stroke): what it can push
     needed_volume: float  # volume the master must push for full release, losses included
     losses_volume: float  # hose expansion + fluid compression
     # pedal, m
@@ -93,3 +93,11 @@ class Sizing:
     effort_curve: tuple[tuple[float, float], ...] | None
     linkage: Linkage
     flags: tuple[Flag, ...]
+    # (defaults: for makers of sizings outside the engine; size_build sets every one)
+    pressure_worst: float | None = None  # Pa, static / efficiency; ratings are checked on it
+    lost_pad_travel: float = 0.0  # m, pad travel before the master pushes fluid
+    usable_pad_travel: float | None = None  # m, to the stop or where the master bottoms
+    effort_pad_travel: float | None = None  # m, where the headline effort is taken
+    dead_stroke: float = 0.0  # m, the master's, as used
+    free_play: float = 0.0  # m, the pushrod's, as used
+    clearance: float = 0.0  # m, as used (0 when a concentric slave's preload holds the bearing on)

@@ -6,7 +6,9 @@ from dataclasses import dataclass, field, replace
 
 from builder.engine import GeometryError, size_build
 from builder.engine.batch import size_all
-from builder.engine.flags import EFFORT_CODES, effort_band_flags, margin_flags
+from builder.engine.flags import (EFFORT_CODES, PRESSURE_CODES, effort_band_flags, margin_flags,
+                                  pressure_rating_flags)
+from builder.engine.hydraulics import worst_pressure
 from builder.engine.result import Sizing
 from builder.engine.travel import bearing_travel
 from builder.history.calibration import Calibration, Prediction, calibrate
@@ -94,7 +96,7 @@ def analyse(shop: Shop, k: int = 5) -> Analysis:
     calibration = calibrate(pairs)
     index = SimilarityIndex(pairs)
     predictions = {b.id: calibration.predict(b, s) for b, s in pairs}
-    sizings = {b.id: judged_on_history(s, predictions[b.id], shop.rules)
+    sizings = {b.id: judged_on_history(s, predictions[b.id], shop.rules, b)
                for b, s in pairs}
     builds = {b.id: b for b in shop.builds}
     return Analysis(
@@ -122,28 +124,40 @@ def analyse_proposal(analysis: Analysis, build: Build, k: int | None = None
     except GeometryError as error:
         raise UnsizableBuilds([(build, error)]) from None
     prediction = analysis.calibration.predict(build, sizing)
-    sizing = judged_on_history(sizing, prediction, analysis.shop.rules)
+    sizing = judged_on_history(sizing, prediction, analysis.shop.rules, build)
     similar = analysis.index.query(build, sizing, k=analysis.k if k is None else k,
                                    exclude_id=build.id)
     return sizing, prediction, similar, deltas(build, sizing)
 
 
-def judged_on_history(sizing: Sizing, prediction: Prediction, rules: ShopRules) -> Sizing:
-    """The sizing with its effort and travel flags judged on what the shop's history says.
+def judged_on_history(sizing: Sizing, prediction: Prediction, rules: ShopRules,
+                      build: Build | None = None) -> Sizing:
+    """The sizing with its effort, pressure and travel flags judged on what the shop's
+    history says.
 
     The effort band is about what the driver will feel, so once history calibrates the
-    effort the effort flags follow that figure. The shop's measured travel losses can only
+    effort the effort flags follow that figure. The worst-case pressure is the static
+    pressure over the calibrated efficiency (all losses after the slave), and the ratings
+    of `build` are checked against it. The shop's measured travel losses can only
     shorten the travel, so travel-short is judged on the smaller of the two margins. Every
-    computed value stays as the engine gave it.
+    other computed value stays as the engine gave it.
     """
     flags = sizing.flags
+    changes: dict = {}
     if prediction.effort is not None:
         flags = tuple(f for f in flags if f.code not in EFFORT_CODES) + tuple(
             effort_band_flags(prediction.effort, rules, basis="calibrated"))
+    if prediction.efficiency is not None and build is not None:
+        worst = worst_pressure(sizing.pressure, prediction.efficiency)
+        changes["pressure_worst"] = worst
+        flags = tuple(f for f in flags if f.code not in PRESSURE_CODES) + tuple(
+            pressure_rating_flags(worst, prediction.efficiency, build, basis="calibrated"))
     if prediction.travel_margin is not None and prediction.travel_margin < sizing.margin:
         bearing = bearing_travel(prediction.slave_travel, sizing.ratio_fork)
         after_losses = margin_flags(bearing, sizing.needed_bearing_travel, rules,
                                     basis="after_losses")
         if after_losses:
             flags = tuple(f for f in flags if f.code != "travel-short") + tuple(after_losses)
-    return sizing if flags == sizing.flags else replace(sizing, flags=flags)
+    if flags != sizing.flags:
+        changes["flags"] = flags
+    return replace(sizing, **changes) if changes else sizing

@@ -3,7 +3,8 @@
 Which builds count: status `measured` or `verified` with a measured pedal effort (rejected
 builds and drafts never do). Per build:
 
-- apparent efficiency e = ideal effort / measured effort (ideal = release load / overall ratio);
+- apparent efficiency e = ideal effort / measured effort (ideal = the engine's peak pad
+  force with no friction);
 - travel factor t = measured slave travel / computed slave travel.
 
 Per gearbox family and shop-wide: the median and the scaled MAD (1.4826 * median absolute
@@ -19,11 +20,23 @@ more builds. A consistent family that differs from the rest keeps its own value;
 one leans on the shop.
 
 Leave-one-out: every counted build is predicted from all the others (the same rules, itself
-removed from its family and from the shop-wide set); its relative residual
-r = (measured - predicted) / predicted gives the reported errors (median and 90th percentile
-of |r|) and the prediction interval: predicted * (1 + 10th percentile of r) to
-predicted * (1 + 90th percentile of r), an 80 % interval, from the family's residuals when it
-has five or more, else from the shop-wide ones. Fewer than three builds: no prediction.
+removed from its family, from the shop-wide set and from the estimate of k); its relative
+residual r = (measured - predicted) / predicted gives the reported errors (median and 90th
+percentile of |r|).
+
+Prediction interval: a conformal rank interval on those residuals (Vovk, Gammerman & Shafer,
+Algorithmic Learning in a Random World, 2005; Lei et al., "Distribution-free predictive
+inference for regression", JASA 113, 2018). With the m residuals of the other builds
+sorted, r_(1) <= ... <= r_(m), the 80 % interval is predicted * (1 + r_(lo)) to
+predicted * (1 + r_(hi)) with lo = floor(0.10 (m + 1)) and hi = ceil(0.90 (m + 1)): for
+exchangeable residuals a new build's residual falls between them with probability at least
+(hi - lo) / (m + 1) >= 80 %, whatever their distribution, for any m. It needs m >= 9
+(hi <= m); the family's own residuals are used when it has that many, else the shop-wide
+ones, else no interval. Residuals from leave-one-out fits are the jackknife's: their
+guarantee is looser in the worst case (Barber et al., "Predictive inference with the
+jackknife+", Annals of Statistics 49, 2021), so the coverage actually reached is measured:
+each counted build's own residual against the interval made without it (leave-one-out
+coverage), shown by `fitment calibration`. Fewer than three builds: no prediction.
 """
 from __future__ import annotations
 
@@ -34,7 +47,7 @@ import numpy as np
 
 from builder.engine.result import Sizing
 from builder.engine.travel import bearing_travel, travel_margin
-from builder.history.robust import medians_leaving_one_out, quantile_without, scaled_mad
+from builder.history.robust import MAD_NORMAL_SCALE, medians_leaving_one_out, scaled_mad
 from builder.model import Build
 
 SHOP_WIDE = "shop-wide"
@@ -43,10 +56,28 @@ MIN_BUILDS = 3  # fewer builds than this in total: no calibrated prediction
 PRIOR_BUILDS = 3.0  # k at most: the shop-wide value counts as this many builds of a family
 MIN_PRIOR_BUILDS = 0.25  # k at least, however consistent the families look
 FULL_WEIGHT_BUILDS = 10  # from this many builds a family stands on its own (w = 1)
-FAMILY_INTERVAL_BUILDS = 5  # a family's own residuals set the interval from this many on
-INTERVAL_QUANTILES = (0.10, 0.90)  # an 80 % interval from the empirical residual quantiles
-INTERVAL_PERCENT = round(100 * (INTERVAL_QUANTILES[1] - INTERVAL_QUANTILES[0]))
+INTERVAL_MISS = 0.20  # alpha: an 80 % interval
+INTERVAL_PERCENT = round(100 * (1 - INTERVAL_MISS))
 ERROR_QUANTILE = 0.90  # reported alongside the median absolute leave-one-out error
+
+
+def conformal_ranks(m: int, miss: float = INTERVAL_MISS) -> tuple[int, int] | None:
+    """1-based ranks (lo, hi) of the sorted residuals that bound a conformal interval of
+    nominal coverage 1 - miss from m residuals: lo = floor(miss / 2 * (m + 1)),
+    hi = ceil((1 - miss / 2) * (m + 1)); None when m is too small (lo < 1 or hi > m).
+    Lei et al., JASA 113 (2018), split conformal; coverage >= (hi - lo) / (m + 1).
+
+    >>> conformal_ranks(8), conformal_ranks(9), conformal_ranks(49)
+    (None, (1, 9), (5, 45))
+    """
+    lo = int(np.floor(miss / 2 * (m + 1) + 1e-9))
+    hi = int(np.ceil((1 - miss / 2) * (m + 1) - 1e-9))
+    if lo < 1 or hi > m:
+        return None
+    return lo, hi
+
+
+INTERVAL_LEAST = next(m for m in range(1, 1000) if conformal_ranks(m) is not None)  # 9
 
 
 def shrink_weight(n: int, prior_builds: float = PRIOR_BUILDS) -> float:
@@ -65,6 +96,11 @@ def prior_builds(values: np.ndarray, members: dict[str, np.ndarray]) -> float:
     robust spreads (scaled MAD) stand in for the variances.
     """
     groups = [values[i] for i in members.values() if len(i) >= 2]
+    return _prior_from(groups)
+
+
+def _prior_from(groups: list[np.ndarray]) -> float:
+    """prior_builds for the values of each family with two or more builds."""
     if len(groups) < 3:
         return PRIOR_BUILDS
     within = scaled_mad(np.concatenate([g - np.median(g) for g in groups]))
@@ -72,6 +108,54 @@ def prior_builds(values: np.ndarray, members: dict[str, np.ndarray]) -> float:
     if between <= 0.0:
         return PRIOR_BUILDS
     return float(np.clip((within / between) ** 2, MIN_PRIOR_BUILDS, PRIOR_BUILDS))
+
+
+def prior_builds_leaving_one_out(values: np.ndarray, members: dict[str, np.ndarray]) -> np.ndarray:
+    """Element i: prior_builds computed without build i (its family loses it).
+
+    The same as calling prior_builds on the values without i, for every i, in
+    O(n log n) per family instead of O(n^2): leaving a build out moves its family's median
+    to one of at most three values; for each, the other families' deviations are fixed and
+    each spread is a median with one element left out (robust.medians_leaving_one_out).
+    """
+    n = len(values)
+    loo = np.full(n, prior_builds(values, members))
+    groups = {f: values[i] for f, i in members.items() if len(i) >= 2}
+    for family, where in members.items():
+        if len(where) < 2:
+            continue  # a family of one is in no group: k does not change without it
+        others = [g for f, g in groups.items() if f != family]
+        if len(where) == 2:  # one build left: the family drops out of the groups
+            loo[where] = _prior_from(others)
+            continue
+        other_deviations = [g - np.median(g) for g in others]
+        other_medians = [float(np.median(g)) for g in others]
+        own = values[where]
+        medians = medians_leaving_one_out(own)
+        for median in np.unique(medians):
+            chosen = np.flatnonzero(medians == median)
+            loo[where[chosen]] = _priors_without(other_deviations, other_medians, own,
+                                                 float(median), chosen)
+    return loo
+
+
+def _priors_without(other_deviations: list[np.ndarray], other_medians: list[float],
+                    own: np.ndarray, median: float, chosen: np.ndarray) -> np.ndarray:
+    """k for each position in `chosen` left out of `own`, whose remaining median is `median`."""
+    if len(other_medians) + 1 < 3:
+        return np.full(len(chosen), PRIOR_BUILDS)
+    between = scaled_mad(np.array(other_medians + [median]))
+    if between <= 0.0:
+        return np.full(len(chosen), PRIOR_BUILDS)
+    deviations = np.concatenate(other_deviations + [own - median])
+    at = len(deviations) - len(own) + chosen  # where each left-out build's deviation sits
+    centres = medians_leaving_one_out(deviations)[at]
+    within = np.empty(len(chosen))
+    for centre in np.unique(centres):
+        same = centres == centre
+        spread = medians_leaving_one_out(np.abs(deviations - centre))[at[same]]
+        within[same] = MAD_NORMAL_SCALE * spread
+    return np.clip((within / between) ** 2, MIN_PRIOR_BUILDS, PRIOR_BUILDS)
 
 
 @dataclass(frozen=True, slots=True)
@@ -91,6 +175,15 @@ class GroupCalibration:
     loo_median_abs_err: float | None  # median |r| of leave-one-out effort predictions
     loo_p90_abs_err: float | None  # 90th percentile of |r|
     residuals: tuple[float, ...]  # leave-one-out relative residuals r, ascending
+    loo_covered: int = 0  # builds whose measured effort fell inside the interval made without them
+    loo_intervals: int = 0  # builds that had such an interval
+    interval_percent: int = 0  # nominal coverage of the intervals, e.g. 80
+    interval_least: int = 0  # fewest residuals that give an interval, e.g. 9
+
+    @property
+    def loo_coverage(self) -> float | None:
+        """Share of leave-one-out intervals that held the measured effort (None without any)."""
+        return self.loo_covered / self.loo_intervals if self.loo_intervals else None
 
 
 @dataclass(frozen=True, slots=True)
@@ -112,11 +205,12 @@ class Prediction:
     """A calibrated effort prediction for one build."""
 
     effort: float | None  # N; None with not enough history
-    interval: tuple[float, float] | None  # N, 80 % interval (10th to 90th percentile)
+    interval: tuple[float, float] | None  # N, 80 % conformal interval
     n_builds: int  # builds behind the estimate (never the build itself)
     basis: Basis | None  # None with not enough history
     slave_travel: float | None = None  # m, computed slave travel * calibrated travel factor
     travel_margin: float | None = None  # fraction, the bearing margin at that slave travel
+    efficiency: float | None = None  # the calibrated apparent efficiency behind `effort`
 
 
 @dataclass(frozen=True, slots=True)
@@ -142,6 +236,7 @@ class _ShrunkMedians:
         self.shop_median = float(np.median(self.values)) if n else None
         self.family_median = {f: float(np.median(self.values[i])) for f, i in self.members.items()}
         self.prior_builds = prior_builds(self.values, self.members)
+        self.prior_loo = prior_builds_leaving_one_out(self.values, self.members)
         # medians without build i: shop-wide, and of its own family (NaN when it is alone)
         self.shop_loo = medians_leaving_one_out(self.values) if n >= 2 else np.full(n, np.nan)
         self.family_loo = np.full(n, np.nan)
@@ -176,13 +271,15 @@ class _ShrunkMedians:
         n_family, n_shop = (self.count(family) if family is not None else 0), len(self.values)
         family_median, shop_median = self.family_median.get(family), self.shop_median
         i = self.index.get(exclude_id) if exclude_id is not None else None
+        prior = self.prior_builds
         if i is not None:
             n_shop -= 1
             shop_median = float(self.shop_loo[i])
+            prior = float(self.prior_loo[i])
             if self.families[i] == family:
                 n_family -= 1
                 family_median = float(self.family_loo[i])
-        weight = shrink_weight(n_family, self.prior_builds)
+        weight = shrink_weight(n_family, prior)
         if n_shop < MIN_BUILDS:
             return _Estimate(None, weight, n_family, n_shop)
         value = shop_median if weight == 0 else weight * family_median + (1 - weight) * shop_median
@@ -211,8 +308,15 @@ class _Residuals:
     def count_without(self, build_id: str) -> int:
         return len(self.ordered) - (build_id in self.rank)
 
-    def quantile_without(self, q: float, build_id: str) -> float:
-        return quantile_without(self.ordered, q, self.rank.get(build_id))
+    def bounds_without(self, build_id: str) -> tuple[float, float] | None:
+        """(r_(lo), r_(hi)) of the conformal interval from every residual but the build's
+        own; None when too few are left."""
+        ranks = conformal_ranks(self.count_without(build_id))
+        if ranks is None:
+            return None
+        skip = self.rank.get(build_id, len(self.ordered))
+        lo, hi = (rank - 1 + (rank - 1 >= skip) for rank in ranks)  # 0-based, own one skipped
+        return float(self.ordered[lo]), float(self.ordered[hi])
 
 
 class Calibration:
@@ -229,9 +333,27 @@ class Calibration:
         groups.update((f, members[known[members]]) for f, members in efficiency.members.items())
         self._residuals = {name: _Residuals([ids[i] for i in where], residuals[where])
                            for name, where in groups.items()}
+        self._coverage = self._leave_one_out_coverage(residuals, ids, known)
         self.shop = self._group(SHOP_WIDE, None)
         names = sorted(set(efficiency.members) | set(travel.members))
         self.families = {name: self._group(name, name) for name in names}
+
+    def _leave_one_out_coverage(self, residuals: np.ndarray, ids: list[str],
+                                known: np.ndarray) -> dict[str, tuple[int, int]]:
+        """Group name -> (covered, intervals): each build's own residual against the
+        interval its own prediction would carry (made without it)."""
+        counts = {name: [0, 0] for name in self._residuals}
+        for i in np.flatnonzero(known):
+            family = self._efficiency.families[i]
+            found = self._interval_bounds(family, ids[i])
+            if found is None:
+                continue
+            (low, high), _, _ = found
+            inside = int(low <= residuals[i] <= high)
+            for name in (SHOP_WIDE, family):
+                counts[name][0] += inside
+                counts[name][1] += 1
+        return {name: (covered, total) for name, (covered, total) in counts.items()}
 
     @property
     def n_builds(self) -> int:
@@ -259,6 +381,10 @@ class Calibration:
             loo_p90_abs_err=float(np.percentile(abs_err, 100 * ERROR_QUANTILE))
             if len(abs_err) else None,
             residuals=tuple(float(r) for r in ordered),
+            loo_covered=self._coverage.get(name, (0, 0))[0],
+            loo_intervals=self._coverage.get(name, (0, 0))[1],
+            interval_percent=INTERVAL_PERCENT,
+            interval_least=INTERVAL_LEAST,
         )
 
     def predict(self, build: Build, sizing: Sizing) -> Prediction:
@@ -282,19 +408,28 @@ class Calibration:
             slave_travel=slave,
             travel_margin=None if slave is None else travel_margin(
                 bearing_travel(slave, sizing.ratio_fork), sizing.needed_bearing_travel),
+            efficiency=estimate.value,
         )
+
+    def _interval_bounds(self, family: str, build_id: str
+                         ) -> tuple[tuple[float, float], str, int] | None:
+        """((r_lo, r_hi), "family" | "shop-wide", residuals behind it), or None."""
+        for name in (family, SHOP_WIDE):
+            residuals = self._residuals.get(name)
+            bounds = None if residuals is None else residuals.bounds_without(build_id)
+            if bounds is not None:
+                source = "family" if name == family else SHOP_WIDE
+                return bounds, source, residuals.count_without(build_id)
+        return None
 
     def _interval(self, family: str, build_id: str, effort: float
                   ) -> tuple[tuple[float, float] | None, str | None, int]:
         """(interval N, "family" | "shop-wide" | None, residuals behind it)."""
-        for name in (family, SHOP_WIDE):
-            residuals = self._residuals.get(name)
-            if residuals is None or residuals.count_without(build_id) < FAMILY_INTERVAL_BUILDS:
-                continue
-            low, high = (residuals.quantile_without(q, build_id) for q in INTERVAL_QUANTILES)
-            source = "family" if name == family else SHOP_WIDE
-            return (effort * (1 + low), effort * (1 + high)), source, residuals.count_without(build_id)
-        return None, None, 0
+        found = self._interval_bounds(family, build_id)
+        if found is None:
+            return None, None, 0
+        (low, high), source, count = found
+        return (effort * (1 + low), effort * (1 + high)), source, count
 
 
 def calibrate(pairs: Sequence[tuple[Build, Sizing]]) -> Calibration:

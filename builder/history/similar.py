@@ -76,7 +76,7 @@ def _categories(build: Build) -> tuple[str, str, str]:
 
 def _numbers(build: Build, sizing: Sizing) -> tuple[float, ...]:
     return (build.master.bore, build.slave.equivalent_bore, sizing.ratio_pedal,
-            sizing.ratio_overall, build.clutch.release_load)
+            sizing.ratio_overall, build.clutch.peak_load)
 
 
 def _log_scaled(values) -> np.ndarray:
@@ -170,7 +170,7 @@ def differences(other: Build, other_sizing: Sizing, build: Build, sizing: Sizing
         slave,
         ("ratio.pedal", other_sizing.ratio_pedal, sizing.ratio_pedal, "ratio"),
         ("ratio.overall", other_sizing.ratio_overall, sizing.ratio_overall, "ratio"),
-        ("clutch.release_load", other.clutch.release_load, build.clutch.release_load, "force"),
+        ("clutch.release_load", other.clutch.peak_load, build.clutch.peak_load, "force"),
     )
     found += [Difference(name, theirs, ours, dimension)
               for name, theirs, ours, dimension in quantities

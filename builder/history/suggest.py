@@ -222,15 +222,6 @@ def target_effort(rules: ShopRules) -> float:
     return 0.5 * (low + high)
 
 
-def worst_pressure(sizing: Sizing, prediction: Prediction) -> float:
-    """Static line pressure / efficiency (Pa): the calibrated efficiency (ideal effort /
-    calibrated effort) when history gives one, else the efficiency the engine used."""
-    efficiency = sizing.efficiency
-    if prediction.effort is not None and prediction.effort > 0:
-        efficiency = sizing.effort_ideal / prediction.effort
-    return sizing.pressure / efficiency
-
-
 def misses(build: Build, sizing: Sizing, effort: float, margin: float, pressure: float,
            rules: ShopRules) -> tuple[Miss, ...]:
     """The rules a sized candidate misses (see the module's list)."""
@@ -276,11 +267,11 @@ def judge(analysis: Analysis, build: Build, changes: tuple[Change, ...] = (),
     rules = analysis.shop.rules
     sizing = size_build(build, rules, with_curve=False)
     prediction = analysis.calibration.predict(build, sizing)
-    sizing = judged_on_history(sizing, prediction, rules)
+    sizing = judged_on_history(sizing, prediction, rules, build)
     effort = prediction.effort if prediction.effort is not None else sizing.effort_predicted
     margin = sizing.margin if prediction.travel_margin is None else min(
         sizing.margin, prediction.travel_margin)
-    pressure = worst_pressure(sizing, prediction)
+    pressure = sizing.pressure_worst
     ratings = [r for r in (build.master.rated_pressure, build.slave.rated_pressure)
                if r is not None]
     if use is None:

@@ -68,11 +68,14 @@ def _convert_rules(data: dict, report: f.ProblemCollector) -> model.ShopRules | 
         value = data
         for step in where:
             value = value.get(step) if isinstance(value, dict) else None
+        key = ".".join(("shop", *where))
         if value is None:  # left out: the field table's default, if it has one
-            value = FIELDS[".".join(("shop", *where))].default
+            value = FIELDS[key].default
         if value is None or not report.clean(where):
             return None
-        return f.quantity(value, ".".join(("shop", *where)), report, where)
+        if FIELDS[key].alternative is not None:  # one figure, or points / one per kind
+            return f.points_or_quantity(value, key, report, where)
+        return f.quantity(value, key, report, where)
 
     band = (get("effort_band", "low"), get("effort_band", "high"))
     hoses = {hose: get("hose_expansion", hose) for hose in model.HOSE_KINDS}
@@ -90,13 +93,17 @@ def _convert_rules(data: dict, report: f.ProblemCollector) -> model.ShopRules | 
         fluid_bulk_modulus=get("fluid_bulk_modulus"),
         line_bore=get("line_bore"),
         max_pushrod_angle=get("max_pushrod_angle"),
+        master_dead_stroke=get("master_dead_stroke"),
+        pushrod_free_play=get("pushrod_free_play"),
     )
+    optional = dict(max_travel_margin=get("max_travel_margin"))
     if report.problems or None in band or None in hoses.values() or None in values.values():
         return None
     return model.ShopRules(site_title=str(data["site_title"]), display_units=data["display_units"],
                            target_effort=target,
                            families=tuple(f.text(code) for code in data.get("families") or ()),
-                           publish=tuple(data.get("publish", model.PUBLISHABLE)), **values)
+                           publish=tuple(data.get("publish", model.PUBLISHABLE)),
+                           **values, **optional)
 
 
 def parse_rules(text: str, shown: str = "shop.yaml") -> model.ShopRules:

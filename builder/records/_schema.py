@@ -14,7 +14,8 @@ from builder.resources import data_dir
 from builder.units import DIMENSIONS, QuantityError, parse_quantity
 
 SCHEMA_DIR = data_dir("schema")
-_QUANTITY_DEFS = ("length", "signed_length", "area", "force", "pressure", "angle", "hose_expansion", "fraction")
+_QUANTITY_DEFS = ("length", "signed_length", "area", "force", "signed_force", "pressure", "angle",
+                  "signed_angle", "hose_expansion", "volume_per_length", "fraction")
 _SKIPPED = ("anyOf", "not")  # section completeness and bore-or-area: the records code words these
 _ANNOTATIONS = ("title", "description", "$schema")  # words for editors: nothing to check
 

@@ -16,10 +16,12 @@ from builder.fields import (CHOICE, CURVE, FIELDS, LAYOUT, MEASURED_KINDS, PART_
                             POINTS, QUANTITIES, QUANTITY, SECTION, SECTIONS, TEXT)
 from builder.presentation import (accepted_range, placeholder_message, quantity_message,
                                   swapped_lengths_message)
+from builder.presentation import percent as percent_words
+from builder.presentation import quantity as quantity_words
 from builder.problems import PLACEHOLDER, Problem
 from builder.records._schema import dotted, quantity_patterns
 from builder.records._yaml import Located, NeedsCare
-from builder.units import QuantityError, check_range, parse_quantity
+from builder.units import QuantityError, check_range, describe, parse_quantity
 
 # field key -> (dimension, lowest, highest) in SI, for every quantity the records hold
 PLAUSIBLE: dict[str, tuple[str, float, float]] = {
@@ -227,7 +229,7 @@ def convert_fields(section: str, raw: dict, report: ProblemCollector, where: tup
         elif kind == CHOICE:
             fields[key] = value
         elif kind == CURVE:
-            fields[key] = _load_curve(value, report, at)
+            fields[key] = _load_curve(value, report, at, f"{section}.{key}")
         elif kind == QUANTITIES:
             fields[key] = _quantities(value, f"{section}.{key}", report, at)
         else:
@@ -288,6 +290,8 @@ def make_section(name: str, fields: dict, report: ProblemCollector, where: tuple
         return None
     if name == "pedal" and not _pedal_lengths_in_order(fields, report, where):
         return None
+    if not _consistent(name, fields, report, where):
+        return None
     cls = SECTION_CLASS[name]
     values = {key: fields.get(key) for key in _CLASS_FIELDS[cls]}
     if "part" in values:
@@ -305,17 +309,70 @@ def _pedal_lengths_in_order(fields: dict, report: ProblemCollector, where: tuple
     return False
 
 
-def _load_curve(raw: list, report: ProblemCollector, where: tuple) -> tuple | None:
+LOAD_AGREEMENT = 0.05  # release_load within 5 % of the load curve's peak (our own rule)
+
+
+def _consistent(name: str, fields: dict, report: ProblemCollector, where: tuple) -> bool:
+    """Fields of one section that must agree with each other; False after reporting."""
+    problems = []
+    if name == "clutch" and fields.get("release_load") is not None and fields.get("load_curve"):
+        given, peak = fields["release_load"], max(load for _, load in fields["load_curve"])
+        if abs(given - peak) > LOAD_AGREEMENT * peak:
+            problems.append(("release_load", "release load {} and the load curve's peak {} "
+                             "differ by {}; they must agree within 5 %, or leave release_load "
+                             "out", (quantity_words(given, "force"), quantity_words(peak, "force"),
+                                     percent_words(given / peak - 1.0, signed=True)), "load_curve"))
+    if name == "slave":
+        pulls = fields.get("acts") == "pull"
+        rod, bore = fields.get("rod_diameter"), fields.get("bore")
+        if pulls and rod is None:
+            problems.append(("rod_diameter", "a pull slave needs rod_diameter (the fluid pushes "
+                             "on the annulus around the rod)", (), "acts"))
+        elif pulls and bore is None:
+            problems.append(("piston_area", "a pull slave gives its bore and rod_diameter, not "
+                             "piston_area", (), "acts"))
+        elif pulls and rod >= bore:
+            problems.append(("rod_diameter", "rod diameter {} must be smaller than the bore {}",
+                             (quantity_words(rod, "length"), quantity_words(bore, "length")),
+                             "bore"))
+        elif rod is not None and not pulls:
+            problems.append(("rod_diameter", "rod_diameter is for a pull slave: add acts: pull, "
+                             "or remove it", (), "acts"))
+        if fields.get("preload") is not None and fields.get("kind") != "concentric":
+            problems.append(("preload", "preload is for a concentric slave (its internal "
+                             "spring)", (), "kind"))
+    if name == "line" and fields.get("hose_length") is not None:
+        if fields["hose_length"] > fields["length"]:
+            problems.append(("hose_length", "hose length {} is longer than the line length {}",
+                             (quantity_words(fields["hose_length"], "length"),
+                              quantity_words(fields["length"], "length")), "length"))
+    for key, words, figures, other in problems:
+        report(_written(report, where, key, other), words.format(*figures),
+               field=dotted(where + (key,)))
+    return not problems
+
+
+def _written(report: ProblemCollector, where: tuple, key: str, other: str) -> tuple:
+    """Where to point for a problem with `key`: the key itself when the record writes it,
+    else the related key `other` when it does (the value may come from a catalogue part),
+    else the section."""
+    written = report.doc.values if report.doc is not None else {}
+    return next((where + (k,) for k in (key, other) if where + (k,) in written), where)
+
+
+def _load_curve(raw: list, report: ProblemCollector, where: tuple,
+                key: str = "clutch.load_curve") -> tuple | None:
+    """The pairs of curve field `key` in SI, the first column increasing; None after a problem."""
     points = []
-    columns = [column.key for column in FIELDS["clutch.load_curve"].children]
+    first, second = FIELDS[key].children
     for index, pair in enumerate(raw):
         at = where + (index,)
-        point = tuple(quantity(value, key, report, at + (i,))
-                      for i, (value, key) in enumerate(zip(pair, columns)))
+        point = tuple(quantity(value, column.key, report, at + (i,))
+                      for i, (value, column) in enumerate(zip(pair, (first, second))))
         if None in point:
             return None
         if points and point[0] <= points[-1][0]:
-            report(at, "bearing travel must increase from one point to the next")
+            report(at, f"{first.label} must increase from one point to the next")
             return None
         points.append(point)
     return tuple(points)
@@ -332,6 +389,32 @@ def _point(raw: list, key: str, report: ProblemCollector, where: tuple) -> tuple
     return quantity(x, key, report, where + (0,)), quantity(y, key, report, where + (1,))
 
 
+def points_or_quantity(value: object, key: str, report: ProblemCollector, where: tuple):
+    """A shop figure that may be one quantity or, as its field's alternative, points (a
+    curve) or one quantity per kind (a group): SI float, tuple of pairs or dict; None after
+    reporting. The schema leaves both forms to this check (anyOf)."""
+    alternative = FIELDS[key].alternative
+    if isinstance(value, list) and alternative.kind == CURVE:
+        if not value or not all(isinstance(pair, list) and len(pair) == 2 for pair in value):
+            report(where, f"expected {FIELDS[key].description[:-1].lower()}; found "
+                          f"{describe(value)}")
+            return None
+        return _load_curve(value, report, where, alternative.key)
+    if isinstance(value, dict) and alternative.kind != CURVE:
+        names = [child.name for child in alternative.children]
+        unknown = [name for name in value if name not in names]
+        missing = [name for name in names if name not in value]
+        if unknown or missing:
+            words = (f"unknown key {unknown[0]!r}; allowed: {', '.join(names)}" if unknown
+                     else f"missing key {missing[0]!r} (give one for every kind)")
+            report(where + ((unknown or missing)[0],), words)
+            return None
+        found = {name: quantity(value[name], child.key, report, where + (name,))
+                 for name, child in zip(names, alternative.children)}
+        return None if None in found.values() else found
+    return quantity(value, key, report, where)
+
+
 def _layout(raw: dict, report: ProblemCollector, where: tuple) -> model.PedalLayout | None:
     values = {}
     for name in _LAYOUT_POINTS:
@@ -344,6 +427,11 @@ def _layout(raw: dict, report: ProblemCollector, where: tuple) -> model.PedalLay
                                 for i, item in enumerate(raw[name]))
     rotation = quantity(raw["rotation_to_stop"], "pedal.layout.rotation_to_stop", report,
                         where + ("rotation_to_stop",))
+    axis = None
+    if raw.get("bore_axis") is not None:
+        axis = quantity(raw["bore_axis"], "pedal.layout.bore_axis", report, where + ("bore_axis",))
+        if axis is None:
+            return None
     if rotation is None or any(None in point for point in values.values()) or any(
             None in point for points in lists.values() for point in points):
         return None
@@ -363,4 +451,4 @@ def _layout(raw: dict, report: ProblemCollector, where: tuple) -> model.PedalLay
     if pad < clevis:
         report(where + ("pad",), swapped_lengths_message(pad, clevis, layout=True))
         return None
-    return model.PedalLayout(rotation_to_stop=rotation, **values, **lists)
+    return model.PedalLayout(rotation_to_stop=rotation, bore_axis=axis, **values, **lists)

@@ -503,8 +503,8 @@ def calibration_page(data: SiteData) -> str:
     cal = data.analysis.calibration
     groups = [cal.shop] + [cal.families[name] for name in sorted(cal.families)]
     cells = [[md(cell) for cell in say.calibration_cells(g)] for g in groups]
-    effort_rows = [row[:7] for row in cells]
-    travel_rows = [row[:1] + row[7:] for row in cells]
+    effort_rows = [row[:say.EFFORT_COLUMNS] for row in cells]
+    travel_rows = [row[:1] + row[say.EFFORT_COLUMNS:] for row in cells]
     return "\n\n".join([
         heading("Calibration"),
         "What the shop's own measurements say about its losses. A family with few builds leans "
@@ -513,12 +513,13 @@ def calibration_page(data: SiteData) -> str:
         "Apparent efficiency is the ideal pedal effort (release load over overall ratio) "
         "divided by the measured effort. The errors show how far a calibrated prediction has "
         "been off, each build predicted from all the others (leave-one-out).",
-        table(list(say.CALIBRATION_HEADINGS[:7]), effort_rows),
+        table(list(say.CALIBRATION_HEADINGS[:say.EFFORT_COLUMNS]), effort_rows),
+        md(say.coverage_sentence(cal.shop)),
         "![Apparent efficiency by gearbox family](charts/calibration-efficiency.svg)",
         "## Slave travel",
         "The travel factor is the measured slave travel over the computed slave travel; below 1 "
         "the line and fluid take up more than the calculation allows.",
-        table(list(say.CALIBRATION_HEADINGS[:1] + say.CALIBRATION_HEADINGS[7:]), travel_rows),
+        table(list(say.CALIBRATION_HEADINGS[:1] + say.CALIBRATION_HEADINGS[say.EFFORT_COLUMNS:]), travel_rows),
         "![Travel factor by gearbox family](charts/calibration-travel.svg)",
         "How these numbers are worked out is on the [method](method.md) page.",
     ]) + "\n"
@@ -687,7 +688,10 @@ def engineering_table(data: SiteData, build: Build, sizing: Sizing) -> str:
         [f"Travel margin (shop minimum {pct(rules.min_travel_margin)})", pct(sizing.margin, signed=True)],
         [f"Release point (shop latest {pct(rules.latest_release_point)} of pad travel)",
          pct(sizing.release_point)],
-        ["Line pressure at full release", show.q(sizing.pressure, "pressure")
+        ["Pad travel before the master pushes fluid (free play and dead stroke)",
+         show.q(sizing.lost_pad_travel, "length")],
+        ["Line pressure at full release (static / worst case)",
+         f"{show.q(sizing.pressure, 'pressure')} / {show.q(sizing.pressure_worst, 'pressure')}"
          + (f" (lowest rating {show.q(min(ratings), 'pressure')})" if ratings else "")],
         ["Master swept volume", show.q(sizing.master_swept_volume, "volume")],
         ["Volume needed for full release (losses included)", show.q(sizing.needed_volume, "volume")],
