@@ -322,10 +322,10 @@ def site() -> None:
 @click.pass_obj
 def site_build(ctx: Context, out: Path, include_drafts: bool) -> None:
     """Build the site from the records; the previous site stays if anything fails."""
-    from builder.site import build_site
+    from builder.site import publish_site
 
     analysis = _run(ctx.analysis)
-    _run(lambda: build_site(analysis, out, progress=progress_reporter("writing pages"),
+    _run(lambda: publish_site(analysis, out, progress=progress_reporter("writing pages"),
                             include_drafts=include_drafts))
     click.echo(f"Site written to {out}" + (" (internal copy: drafts included)" if include_drafts else ""))
 

@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pytest
 
-from builder.site import build_site
+from builder.site import publish_site
 from builder.site.serve import StaticServer
 from browsing import search
 from site_shops import HOSTILE_ID, analysis
@@ -20,7 +20,7 @@ pytestmark = pytest.mark.browser
 def served(tmp_path_factory):
     root = tmp_path_factory.mktemp("browser")
     out = root / "site"
-    build_site(analysis(6, hostile=True, root=str(root / "records")), out)
+    publish_site(analysis(6, hostile=True, root=str(root / "records")), out)
     with StaticServer(out) as server:
         yield server.url
 

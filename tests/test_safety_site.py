@@ -23,8 +23,8 @@ import pytest
 from click.testing import CliRunner
 
 from builder.cli import main
-from builder.site import SiteBuildError, build_site
-from builder.site import build as site_build
+from builder.site import PublishError, publish_site
+from builder.site import publish as site_publish
 from site_shops import analysis
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -119,16 +119,16 @@ def test_out_reaching_records_through_links_is_refused(shop):
 def test_a_site_with_a_file_added_or_changed_is_not_replaced(tmp_path):
     result = analysis(2, root=str(tmp_path / "records"))
     out = tmp_path / "site"
-    build_site(result, out)
+    publish_site(result, out)
     (out / "keep.txt").write_text("precious")
-    with pytest.raises(SiteBuildError, match="did not write or that were changed"):
-        build_site(result, out)
+    with pytest.raises(PublishError, match="did not write or that were changed"):
+        publish_site(result, out)
     assert (out / "keep.txt").read_text() == "precious"
     (out / "keep.txt").unlink()
     page = out / "index.html"
     page.write_text(page.read_text() + "<!-- my edit -->")
-    with pytest.raises(SiteBuildError, match="index.html"):
-        build_site(result, out)
+    with pytest.raises(PublishError, match="index.html"):
+        publish_site(result, out)
     assert "my edit" in page.read_text()
 
 
@@ -137,27 +137,27 @@ def test_a_marker_alone_is_not_trusted(tmp_path):
     out.mkdir()
     (out / ".fitment-site").write_text("Built by fitment; `fitment site build` replaces this folder.\n")
     (out / "report.pdf").write_bytes(b"%PDF precious")
-    with pytest.raises(SiteBuildError, match="no list of the files fitment wrote"):
-        build_site(analysis(2, root=str(tmp_path / "records")), out)
+    with pytest.raises(PublishError, match="no list of the files fitment wrote"):
+        publish_site(analysis(2, root=str(tmp_path / "records")), out)
     assert (out / "report.pdf").read_bytes() == b"%PDF precious"
 
 
 def test_a_forged_manifest_does_not_cover_a_file_it_does_not_list(tmp_path):
     out = tmp_path / "site"
     out.mkdir()
-    (out / ".fitment-site").write_text(json.dumps({"format": site_build.MANIFEST_FORMAT, "files": {}}))
+    (out / ".fitment-site").write_text(json.dumps({"format": site_publish.MANIFEST_FORMAT, "files": {}}))
     (out / "keep.txt").write_text("precious")
-    with pytest.raises(SiteBuildError, match="keep.txt"):
-        build_site(analysis(2, root=str(tmp_path / "records")), out)
+    with pytest.raises(PublishError, match="keep.txt"):
+        publish_site(analysis(2, root=str(tmp_path / "records")), out)
     assert (out / "keep.txt").read_text() == "precious"
 
 
 def test_an_unchanged_site_is_replaced_and_stays_a_real_folder(tmp_path):
     result = analysis(2, root=str(tmp_path / "records"))
     out = tmp_path / "site"
-    build_site(result, out)
+    publish_site(result, out)
     first = out.stat().st_ino
-    build_site(result, out)
+    publish_site(result, out)
     assert out.is_dir() and not out.is_symlink() and out.stat().st_ino != first
     assert sorted(p.name for p in tmp_path.iterdir()) == ["site"]  # the old one is gone
 
@@ -173,7 +173,7 @@ def test_out_under_a_file_is_a_plain_error(shop):
 
 RUNNER = r"""
 import os, sys, time, pathlib
-import builder.site.build as site_build
+import builder.site.publish as site_publish
 records, out, ready, point = sys.argv[1:5]
 out = os.path.abspath(out)
 
@@ -182,27 +182,27 @@ def pause():
     time.sleep(600)
 
 if point == "after-mkdocs":
-    run_mkdocs = site_build.run_mkdocs
+    run_mkdocs = site_publish.run_mkdocs
     def paused_mkdocs(*args, **kwargs):
         run_mkdocs(*args, **kwargs)
         pause()
-    site_build.run_mkdocs = paused_mkdocs
+    site_publish.run_mkdocs = paused_mkdocs
 else:  # stop right after any step that moves --out: a rename or an exchange
-    if point == "no-exchange" and hasattr(site_build, "exchange"):
-        site_build.exchange = lambda one, other: False
+    if point == "no-exchange" and hasattr(site_publish, "exchange"):
+        site_publish.exchange = lambda one, other: False
     rename = os.rename
     def paused_rename(src, dst, *args, **kwargs):
         rename(src, dst, *args, **kwargs)
         if out in (os.path.abspath(src), os.path.abspath(dst)):
             pause()
     os.rename = paused_rename
-    if hasattr(site_build, "exchange") and point != "no-exchange":
-        exchange = site_build.exchange
+    if hasattr(site_publish, "exchange") and point != "no-exchange":
+        exchange = site_publish.exchange
         def paused_exchange(one, other):
             done = exchange(one, other)
             pause()
             return done
-        site_build.exchange = paused_exchange
+        site_publish.exchange = paused_exchange
 
 from builder.cli import main
 sys.argv = ["fitment", "--records", records, "site", "build", "--out", out]
@@ -257,7 +257,7 @@ def test_without_the_atomic_exchange_the_next_build_repairs_a_kill_between_renam
     assert fitment(shop, "site", "build", "--out", str(out)).exit_code == 0
     killed_build(shop, out, "no-exchange")
     assert not out.exists()
-    removed = site_build.remove_leftovers(out)
+    removed = site_publish.remove_leftovers(out)
     assert_complete_site(out, shop)
     assert removed and leftovers(shop, out) == []
 
@@ -267,7 +267,7 @@ def test_the_exchange_is_used_where_the_kernel_has_it(tmp_path):
     one.mkdir()
     other.mkdir()
     (one / "a").write_text("a")
-    if not site_build.exchange(one, other):
+    if not site_publish.exchange(one, other):
         pytest.skip("renameat2(RENAME_EXCHANGE) unsupported here; the fallback is tested above")
     assert (other / "a").read_text() == "a" and not (one / "a").exists()
 
@@ -278,20 +278,20 @@ def test_leftover_cleaning_removes_only_provably_abandoned_work_folders(shop, tm
     out = shop.parent / "published"
     temp = shop.parent / "temp"
     # not ours: no owner file; an owner file copied from elsewhere (other inode); a live build
-    plain = out.parent / f".published{site_build.STAGE_INFIX}plain"
+    plain = out.parent / f".published{site_publish.STAGE_INFIX}plain"
     plain.mkdir()
     (plain / "precious.txt").write_text("precious")
-    copied = temp / f"{site_build.DOCS_PREFIX}copied"
+    copied = temp / f"{site_publish.DOCS_PREFIX}copied"
     copied.mkdir()
-    (copied / site_build.OWNER).write_text(json.dumps({"tool": "fitment", "pid": 1, "device": 0, "inode": 0}))
+    (copied / site_publish.OWNER).write_text(json.dumps({"tool": "fitment", "pid": 1, "device": 0, "inode": 0}))
     (copied / "precious.txt").write_text("precious")
-    with site_build.work_folder(temp, site_build.DOCS_PREFIX) as live:
+    with site_publish.work_folder(temp, site_publish.DOCS_PREFIX) as live:
         (live / "working.txt").write_text("busy")
         # ours and abandoned: an owner file naming its own folder, lock free
-        dead = temp / f"{site_build.DOCS_PREFIX}dead"
+        dead = temp / f"{site_publish.DOCS_PREFIX}dead"
         dead.mkdir()
         info = dead.stat()
-        (dead / site_build.OWNER).write_text(json.dumps(
+        (dead / site_publish.OWNER).write_text(json.dumps(
             {"tool": "fitment", "pid": 1, "device": info.st_dev, "inode": info.st_ino}))
         assert fitment(shop, "site", "build", "--out", str(out)).exit_code == 0
         assert not dead.exists()
@@ -301,9 +301,9 @@ def test_leftover_cleaning_removes_only_provably_abandoned_work_folders(shop, tm
 
 
 def test_a_held_lock_marks_a_live_build(tmp_path):
-    with site_build.work_folder(tmp_path, site_build.DOCS_PREFIX) as folder:
-        assert site_build._abandoned(folder) is None
-        with open(folder / site_build.OWNER) as handle:
+    with site_publish.work_folder(tmp_path, site_publish.DOCS_PREFIX) as folder:
+        assert site_publish._abandoned(folder) is None
+        with open(folder / site_publish.OWNER) as handle:
             with pytest.raises(OSError):
                 fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
     assert not folder.exists()
@@ -311,14 +311,14 @@ def test_a_held_lock_marks_a_live_build(tmp_path):
 
 def test_a_parent_folder_that_cannot_be_written_is_a_plain_error(shop, monkeypatch):
     # As root every folder is writable: the refusal is simulated where the work folder is made.
-    real_mkdtemp = site_build.tempfile.mkdtemp
+    real_mkdtemp = site_publish.tempfile.mkdtemp
 
     def mkdtemp(prefix=None, dir=None, **kwargs):
         if prefix and prefix.startswith(".published"):
             raise PermissionError(13, "Permission denied", str(dir))
         return real_mkdtemp(prefix=prefix, dir=dir, **kwargs)
 
-    monkeypatch.setattr(site_build.tempfile, "mkdtemp", mkdtemp)
+    monkeypatch.setattr(site_publish.tempfile, "mkdtemp", mkdtemp)
     result = fitment(shop, "site", "build", "--out", "published")
     assert_refused(result, "site: could not write the site: Permission denied")
     assert not Path("published").exists()
@@ -329,8 +329,8 @@ def test_a_file_written_into_the_old_site_during_the_swap_is_kept_not_deleted(tm
     # is found by the check before deletion; the old site is set aside whole, and said so.
     result = analysis(2, root=str(tmp_path / "records"))
     out = tmp_path / "site"
-    build_site(result, out)
-    real_exchange = site_build.exchange
+    publish_site(result, out)
+    real_exchange = site_publish.exchange
 
     def exchange_then_write(one, other):
         done = real_exchange(one, other)
@@ -339,9 +339,9 @@ def test_a_file_written_into_the_old_site_during_the_swap_is_kept_not_deleted(tm
         (one / "late.txt").write_text("precious")  # `one` now holds the old site
         return done
 
-    monkeypatch.setattr(site_build, "exchange", exchange_then_write)
-    with pytest.raises(SiteBuildError, match="kept here instead of deleted") as caught:
-        build_site(result, out)
+    monkeypatch.setattr(site_publish, "exchange", exchange_then_write)
+    with pytest.raises(PublishError, match="kept here instead of deleted") as caught:
+        publish_site(result, out)
     kept = Path(caught.value.problems[0].path)
     assert (kept / "late.txt").read_text() == "precious"
     assert (out / "index.html").is_file() and not (out / "late.txt").exists()

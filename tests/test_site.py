@@ -12,7 +12,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from builder.site import SiteBuildError, build_site
+from builder.site import PublishError, publish_site
 from builder.site.escape import md, md_paragraphs, plain
 from builder.site.pages import generated_pages, slug
 from builder.site.serve import StaticServer
@@ -79,7 +79,7 @@ def site(tmp_path_factory) -> tuple[object, Path]:
     result = analysis(6, hostile=True, root=str(root / "records"))
     out = root / "site"
     steps = []
-    build_site(result, out, progress=lambda done, total: steps.append((done, total)))
+    publish_site(result, out, progress=lambda done, total: steps.append((done, total)))
     # a step per published build page (drafts are not published), then mkdocs, then publishing
     total = sum(b.status != "draft" for b in result.shop.builds) + 2
     assert steps == [(done, total) for done in range(1, total + 1)]
@@ -248,13 +248,13 @@ def test_reference_marks_failed_combinations(site):
 def test_failed_build_leaves_the_last_good_site_byte_for_byte(tmp_path):
     result = analysis(2, root=str(tmp_path / "records"))
     out = tmp_path / "site"
-    build_site(result, out)
+    publish_site(result, out)
     before = file_hashes(out)
     broken = tmp_path / "broken_src"
     broken.mkdir()
     (broken / "method.md").write_text("# Method\n\nSee [nowhere](no-such-page.md).\n")
-    with pytest.raises(SiteBuildError) as caught:
-        build_site(result, out, site_src=broken)
+    with pytest.raises(PublishError) as caught:
+        publish_site(result, out, site_src=broken)
     assert "no-such-page.md" in str(caught.value)
     assert file_hashes(out) == before
     assert sorted(p.name for p in tmp_path.iterdir()) == ["broken_src", "site"]  # no leftovers
@@ -263,7 +263,7 @@ def test_failed_build_leaves_the_last_good_site_byte_for_byte(tmp_path):
 def test_shop_site_src_overrides_packaged_files(tmp_path):
     (tmp_path / "site_src").mkdir()
     (tmp_path / "site_src" / "cautions.md").write_text("# Cautions\n\nOur own shop words.\n")
-    build_site(analysis(2, root=str(tmp_path / "records")), tmp_path / "site")
+    publish_site(analysis(2, root=str(tmp_path / "records")), tmp_path / "site")
     text = (tmp_path / "site" / "cautions" / "index.html").read_text()
     assert "Our own shop words." in text
 
@@ -272,8 +272,8 @@ def test_refuses_to_replace_a_folder_it_did_not_build(tmp_path):
     out = tmp_path / "mine"
     out.mkdir()
     (out / "keep.txt").write_text("precious")
-    with pytest.raises(SiteBuildError, match="not built by fitment"):
-        build_site(analysis(2, root=str(tmp_path / "records")), out)
+    with pytest.raises(PublishError, match="not built by fitment"):
+        publish_site(analysis(2, root=str(tmp_path / "records")), out)
     assert (out / "keep.txt").read_text() == "precious"
 
 

@@ -22,7 +22,7 @@ from click.testing import CliRunner
 
 from builder.cli import main
 from builder.history import analyse
-from builder.site import build_site
+from builder.site import publish_site
 from factories import POUND_FORCE
 from site_shops import shop
 
@@ -55,8 +55,8 @@ def sites(tmp_path_factory):
     result = analyse(shop(8, root=str(root / "records")))
     assert any(b.status == "draft" for b in result.shop.builds)
     public, internal = root / "public", root / "internal"
-    build_site(result, public)
-    build_site(result, internal, include_drafts=True)
+    publish_site(result, public)
+    publish_site(result, internal, include_drafts=True)
     return result, public, internal
 
 
@@ -90,7 +90,7 @@ def test_the_publish_rule_decides_which_statuses_are_shown(tmp_path):
         only_verified.rules, publish=("verified",)))
     result = analyse(only_verified)
     out = tmp_path / "site"
-    build_site(result, out)  # strict mkdocs: no link (similar builds, where used) to a page left out
+    publish_site(result, out)  # strict mkdocs: no link (similar builds, where used) to a page left out
     shown = {p.name for p in (out / "builds").iterdir() if p.is_dir()}
     assert shown == {b.id for b in result.shop.builds if b.status == "verified"}
     rows = reference_rows(out)
@@ -150,7 +150,7 @@ def test_a_verified_build_the_tool_flags_is_marked(tmp_path):
         heavy.rules, effort_band=(5 * POUND_FORCE, 8 * POUND_FORCE)))
     result = analyse(heavy)
     out = tmp_path / "site"
-    build_site(result, out)
+    publish_site(result, out)
     verified = [b for b in result.shop.builds if b.status == "verified"]
     assert all(result.sizings[b.id].flags for b in verified)
     rows = [row for row in reference_rows(out) if "\u2714 verified" in row]
@@ -207,7 +207,7 @@ def test_record_text_in_a_family_heading_stays_text(tmp_path):
     hostile = dataclasses.replace(hostile, builds=hostile.builds + (
         build(9, text=HOSTILE_TEXT + " { .evil #x }", build_id="ZZ-667", status="verified"),))
     out = tmp_path / "site"
-    build_site(analyse(hostile), out)
+    publish_site(analyse(hostile), out)
     html = (out / "reference" / "index.html").read_text(encoding="utf-8")
     assert 'class="evil"' not in html and 'id="x"' not in html
     assert "<script>window.__pwned" not in html and "onerror=" not in html.replace("onerror=&quot;", "")

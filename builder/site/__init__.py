@@ -1,9 +1,10 @@
 """The published fitment reference: Markdown + SVG pages from an Analysis, built by mkdocs.
 
-build_site(analysis, out_dir, site_src=None, progress=None) builds and swaps into place;
+publish_site(analysis, out_dir, site_src=None, progress=None) builds the pages with mkdocs and
+swaps them into place;
 serve(analysis_loader, host, port) serves locally and rebuilds on change.
 """
-from builder.site.build import SiteBuildError, build_site
+from builder.site.publish import PublishError, publish_site
 from builder.site.serve import serve
 
-__all__ = ["SiteBuildError", "build_site", "serve"]
+__all__ = ["PublishError", "publish_site", "serve"]

@@ -13,14 +13,17 @@ from collections.abc import Callable
 from http import HTTPStatus
 from http.server import SimpleHTTPRequestHandler, ThreadingHTTPServer
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from builder.problems import InputError, terminal_safe
-from builder.site.build import PACKAGED_SITE_SRC, SERVE_PREFIX, build_site, shop_site_src, work_folder
+from builder.site.publish import PACKAGED_SITE_SRC, SERVE_PREFIX, publish_site, shop_site_src, work_folder
 
 
 class PortUnavailable(OSError):
     """The port cannot be listened on (in use, or not allowed); the message says so plainly."""
+
+if TYPE_CHECKING:
+    from builder.history import Analysis
 
 
 class _QuietHandler(SimpleHTTPRequestHandler):
@@ -80,7 +83,7 @@ def source_stamp(folders: list[Path]) -> tuple:
     return tuple(stamp)
 
 
-def records_loader(records: str | os.PathLike) -> Callable[[], Any]:
+def records_loader(records: str | os.PathLike) -> Callable[[], Analysis]:
     """Load and analyse a records folder afresh on every call."""
     from builder.history import analyse
     from builder.records import load_shop
@@ -88,7 +91,7 @@ def records_loader(records: str | os.PathLike) -> Callable[[], Any]:
     return lambda: analyse(load_shop(records))
 
 
-def serve(analysis_loader: Callable[[], Any] | str | os.PathLike, host: str = "127.0.0.1",
+def serve(analysis_loader: Callable[[], Analysis] | str | os.PathLike, host: str = "127.0.0.1",
           port: int = 8000, site_src: str | os.PathLike | None = None,
           poll_seconds: float = 1.0) -> None:
     """Build the site, serve it at http://host:port/ until interrupted, and rebuild it when
@@ -113,10 +116,10 @@ def serve(analysis_loader: Callable[[], Any] | str | os.PathLike, host: str = "1
         pass
 
 
-def _serve(server: StaticServer, analysis_loader: Callable[[], Any], out: Path,
+def _serve(server: StaticServer, analysis_loader: Callable[[], Analysis], out: Path,
            site_src: str | os.PathLike | None, poll_seconds: float) -> None:
     analysis = analysis_loader()
-    build_site(analysis, out, site_src)
+    publish_site(analysis, out, site_src)
     watched = [Path(analysis.shop.root), PACKAGED_SITE_SRC, shop_site_src(analysis, site_src)]
     stamp = source_stamp(watched)
     with server:
@@ -128,9 +131,9 @@ def _serve(server: StaticServer, analysis_loader: Callable[[], Any], out: Path,
                 continue
             stamp = now
             try:
-                build_site(analysis_loader(), out, site_src)
+                publish_site(analysis_loader(), out, site_src)
                 print("Rebuilt the site.", file=sys.stderr)
-            except InputError as error:  # SiteBuildError included
+            except InputError as error:  # PublishError included
                 print(f"{terminal_safe(str(error))}\nKept the last good site.", file=sys.stderr)
 
 

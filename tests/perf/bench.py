@@ -13,7 +13,7 @@ each in a fresh child process so one figure does not warm the next:
 - `fitment check PROPOSAL` end to end as a subprocess, process start included, against a
   synthetic shop and the demo shop in records/;
 - peak memory (ru_maxrss) of a child that loads, sizes and analyses the largest shop;
-- `builder.site.build_site` at two shop sizes: time ratio, our stages (sources and
+- `builder.site.publish_site` at two shop sizes: time ratio, our stages (sources and
   generated Markdown/SVG) against mkdocs, and bytes per build page.
 
 Each line prints the figure, its target and MET / NOT MET. Wall-clock figures on a shared
@@ -137,10 +137,10 @@ def child_memory(records: str) -> dict:
 
 
 def child_site(records: str, out: str) -> dict:
-    """build_site with our two stages (sources, generated pages) and mkdocs timed apart."""
+    """publish_site with our two stages (sources, generated pages) and mkdocs timed apart."""
     from builder.history import analyse
     from builder.records import load_shop
-    from builder.site import build as site_build
+    from builder.site import publish as site_publish
 
     analysis = analyse(load_shop(records))
     spent = {"ours": 0.0, "mkdocs": 0.0}
@@ -154,11 +154,11 @@ def child_site(records: str, out: str) -> dict:
                 spent[bucket] += time.perf_counter() - t0
         return run
 
-    site_build.write_sources = timed(site_build.write_sources, "ours")
-    site_build.write_generated = timed(site_build.write_generated, "ours")
-    site_build.run_mkdocs = timed(site_build.run_mkdocs, "mkdocs")
+    site_publish.write_sources = timed(site_publish.write_sources, "ours")
+    site_publish.write_generated = timed(site_publish.write_generated, "ours")
+    site_publish.run_mkdocs = timed(site_publish.run_mkdocs, "mkdocs")
     c0, t0 = time.process_time(), time.perf_counter()
-    site_build.build_site(analysis, out)
+    site_publish.publish_site(analysis, out)
     total, cpu = time.perf_counter() - t0, time.process_time() - c0
     ids = {synthetic_shop.build_id(n) for n in range(1, len(analysis.shop.builds) + 1)}
     pages = [p for p in Path(out, "builds").glob("*/index.html") if p.parent.name.upper() in ids]

@@ -1,4 +1,4 @@
-"""Site build stages: sources -> docs dir (Markdown + SVG) -> mkdocs (strict) -> swap into place.
+"""Publishing stages: sources -> docs dir (Markdown + SVG) -> mkdocs (strict) -> swap into place.
 
 Publishing never loses a file and never leaves `out_dir` without a complete site:
 
@@ -33,12 +33,16 @@ import tempfile
 from collections.abc import Callable, Iterator, Sequence
 from contextlib import contextmanager
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING
 
 from builder.problems import InputError, Problem
 from builder.resources import data_dir
 from builder.site.escape import plain
 from builder.site.pages import generated_pages, method_appendix, published_statuses
+
+if TYPE_CHECKING:
+    from builder.history import Analysis
+    from builder.model import Build
 
 PACKAGED_SITE_SRC = data_dir("site_src")
 MARKER = ".fitment-site"  # the manifest of every file a published site holds
@@ -53,7 +57,7 @@ THEME_DIR = "overrides"
 Progress = Callable[[int, int], None]  # (done, total): one step per build, then mkdocs, publish
 
 
-class SiteBuildError(InputError):
+class PublishError(InputError):
     """The site could not be built; the published folder was left untouched.
 
     An InputError, so the command line prints `path:0:0: site: message` lines and exits 1.
@@ -64,7 +68,7 @@ class SiteBuildError(InputError):
                          + [Problem(str(path), 0, 0, "mkdocs", d) for d in details])
 
 
-def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.PathLike | None = None,
+def publish_site(analysis: Analysis, out_dir: str | os.PathLike, site_src: str | os.PathLike | None = None,
                progress: Progress | None = None, include_drafts: bool = False) -> None:
     """Build the published site for `analysis` into `out_dir`: the builds whose status the
     shop's `publish` rule lists, and drafts too with `include_drafts` (an internal copy).
@@ -72,7 +76,7 @@ def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.Pat
     site_src: a folder whose files override the packaged defaults file by file; None uses
     the `site_src/` beside the shop's records folder when there is one. progress, when
     given, is called as progress(done, total): one step per build page, then one for the
-    mkdocs build and one for publishing. Raises SiteBuildError (out_dir untouched).
+    mkdocs build and one for publishing. Raises PublishError (out_dir untouched).
     """
     out = Path(os.path.realpath(out_dir))
     check_outside_records(out, Path(analysis.shop.root))
@@ -95,7 +99,7 @@ def build_site(analysis: Any, out_dir: str | os.PathLike, site_src: str | os.Pat
                 _tick(progress, steps, steps)
     except OSError as error:  # a folder we may not write in, a full disk: said plainly
         where = error.filename or out
-        raise SiteBuildError(where, f"could not write the site: {error.strerror or error}; "
+        raise PublishError(where, f"could not write the site: {error.strerror or error}; "
                                     "the last site stays") from None
 
 
@@ -106,7 +110,7 @@ def check_outside_records(out: Path, records: Path) -> None:
         how = ("is the records folder" if out == real_records else
                "holds the records folder" if real_records.is_relative_to(out) else
                "lies inside the records folder")
-        raise SiteBuildError(out, f"{how} {real_records}; the site is never written there "
+        raise PublishError(out, f"{how} {real_records}; the site is never written there "
                                   "(choose an --out outside it)")
 
 
@@ -118,12 +122,12 @@ def check_replaceable(out: Path) -> None:
     except (FileNotFoundError, NotADirectoryError):  # a file above it: _make_folder says so
         return
     except OSError as error:
-        raise SiteBuildError(out, f"cannot be used: {error.strerror or error}") from None
+        raise PublishError(out, f"cannot be used: {error.strerror or error}") from None
     if not stat.S_ISDIR(info.st_mode):
-        raise SiteBuildError(out, "exists and is not a folder; not replacing it")
+        raise PublishError(out, "exists and is not a folder; not replacing it")
     foreign = foreign_files(out)
     if foreign is not None:
-        raise SiteBuildError(out, foreign)
+        raise PublishError(out, foreign)
 
 
 def foreign_files(folder: Path) -> str | None:
@@ -211,7 +215,7 @@ def _make_folder(folder: Path) -> None:
     except OSError as error:
         blocker = next((p for p in [folder, *folder.parents] if p.exists() and not p.is_dir()), folder)
         why = "is not a folder" if blocker != folder or folder.exists() else (error.strerror or str(error))
-        raise SiteBuildError(blocker, f"{why}; cannot put the site under it") from None
+        raise PublishError(blocker, f"{why}; cannot put the site under it") from None
 
 
 # --- work folders: owned, locked, removed by the next build when their build died ----------
@@ -325,12 +329,12 @@ def publish(new: Path, out: Path) -> None:
             elif not exchange(new, out):
                 _swap_by_renames(new, out)
         except OSError as error:
-            raise SiteBuildError(out, f"could not put the new site in place: {error.strerror or error}; "
+            raise PublishError(out, f"could not put the new site in place: {error.strerror or error}; "
                                       "the last site stays") from None
     if os.path.isdir(new) and foreign_files(new) is not None:  # the old site, changed meanwhile
         kept = out.parent / f"{out.name}.kept-{os.getpid()}"
         os.rename(new, kept)
-        raise SiteBuildError(kept, f"the new site is at {out}; the old one gained or changed files "
+        raise PublishError(kept, f"the new site is at {out}; the old one gained or changed files "
                                    "during the build, so it was kept here instead of deleted")
 
 
@@ -358,7 +362,7 @@ def _locked(folder: Path) -> Iterator[None]:
         os.close(fd)
 
 
-def shop_site_src(analysis: Any, site_src: str | os.PathLike | None) -> Path:
+def shop_site_src(analysis: Analysis, site_src: str | os.PathLike | None) -> Path:
     """The shop's own site sources: `site_src` when given, else `site_src/` beside the
     records folder (which may not exist)."""
     if site_src is not None:
@@ -366,7 +370,7 @@ def shop_site_src(analysis: Any, site_src: str | os.PathLike | None) -> Path:
     return Path(analysis.shop.root).resolve().parent / "site_src"
 
 
-def source_layers(analysis: Any, site_src: str | os.PathLike | None) -> list[Path]:
+def source_layers(analysis: Analysis, site_src: str | os.PathLike | None) -> list[Path]:
     """Folders of site sources, later ones overriding earlier ones file by file."""
     layers = [PACKAGED_SITE_SRC]
     extra = shop_site_src(analysis, site_src)
@@ -374,7 +378,7 @@ def source_layers(analysis: Any, site_src: str | os.PathLike | None) -> list[Pat
         if extra.resolve() != PACKAGED_SITE_SRC.resolve():
             layers.append(extra)
     elif site_src is not None:
-        raise SiteBuildError(extra, "site sources folder not found")
+        raise PublishError(extra, "site sources folder not found")
     return layers
 
 
@@ -389,7 +393,7 @@ def write_sources(layers: list[Path], work: Path) -> Path:
                                           for p in relative.parts):
                 chosen[relative] = path
     if Path(CONFIG) not in chosen:
-        raise SiteBuildError(layers[-1], f"no {CONFIG} in the site sources")
+        raise PublishError(layers[-1], f"no {CONFIG} in the site sources")
     docs = work / "docs"
     docs.mkdir()
     for relative, path in sorted(chosen.items()):
@@ -399,13 +403,13 @@ def write_sources(layers: list[Path], work: Path) -> Path:
     return docs
 
 
-def published_builds(analysis: Any, include_drafts: bool = False) -> list:
+def published_builds(analysis: Analysis, include_drafts: bool = False) -> list[Build]:
     """The builds the site shows (see pages.published_statuses)."""
     shown = published_statuses(analysis.shop.rules, include_drafts)
     return [build for build in analysis.shop.builds if build.status in shown]
 
 
-def write_generated(analysis: Any, docs: Path, progress: Progress | None,
+def write_generated(analysis: Analysis, docs: Path, progress: Progress | None,
                     include_drafts: bool = False) -> None:
     """Generated pages and pictures go over the sources; the method page gets the
     calibration and similarity sections from the history module."""
@@ -433,7 +437,7 @@ class _Collect(logging.Handler):
 
 def run_mkdocs(config_file: Path, docs: Path, site_dir: Path, site_name: str | None,
                sources: Path) -> None:
-    """mkdocs build in strict mode; any warning or error becomes a SiteBuildError naming
+    """mkdocs build in strict mode; any warning or error becomes a PublishError naming
     the site sources folder."""
     from mkdocs.commands.build import build
     from mkdocs.config import load_config
@@ -454,7 +458,7 @@ def run_mkdocs(config_file: Path, docs: Path, site_dir: Path, site_name: str | N
         finally:
             config.plugins.on_shutdown()
     except (Abort, MkDocsException) as error:
-        raise SiteBuildError(sources, f"the site build failed: {error}", collect.messages) from None
+        raise PublishError(sources, f"the site build failed: {error}", collect.messages) from None
     finally:
         logger.removeHandler(collect)
         logger.propagate = propagate
