@@ -573,6 +573,7 @@ def build_page(data: SiteData, build: Build, sizing: Sizing, with_curve: bool) -
     if build.status == "draft":
         out.append('!!! note "Draft"\n    A proposal, not a finished build: nothing here was '
                    "measured on a car.")
+        out += order_blocks(data, build)
     if build.outcome:
         out.append(f"**Outcome:** {md(build.outcome)}")
     out += flag_blocks(sizing, show.primary)
@@ -618,6 +619,30 @@ BENCH_CAUTION = (
     "Confirm full release on the car before it is driven: a clutch that does not release can "
     "let a car creep. The component makers' specifications, local vehicle codes and licensed "
     "practice come first.")
+
+
+def order_blocks(data: SiteData, build: Build) -> list[str]:
+    """A proposal's verdict and, when it is not ready, what to order instead: the same
+    rows `fitment check` and `fitment suggest` give (catalogue parts)."""
+    from builder.check import CHECK_SUGGESTIONS, check_build, verdict
+
+    result = check_build(data.analysis, build, k=0)
+    out = ["## Verdict and what to order",
+           f"**{md(say.verdict_line(*verdict(result.sizing, result.rejected)))}**"]
+    suggestions = result.suggestions
+    if suggestions is None:
+        return out
+    shown = suggestions.shown(CHECK_SUGGESTIONS)
+    if suggestions.recommendation is None:
+        out.append(md(say.no_recommendation_line(suggestions, len(shown))))
+    else:
+        out.append(f"The best {len(shown)} of {suggestions.combinations} catalogue combinations, "
+                   "as `fitment suggest` ranks them:")
+    for rank, row in enumerate(shown, 1):
+        lines = say.suggestion_lines(row, rank, data.show.primary,
+                                     recommended=row is suggestions.recommendation)
+        out.append(md_paragraphs("\n".join(line.strip() for line in lines)))
+    return out
 
 
 def flag_blocks(sizing: Sizing, primary: str) -> list[str]:
