@@ -75,7 +75,7 @@ def line_losses(build: Build, rules: ShopRules, fluid_volume: float):
 
 def size_build(build: Build, rules: ShopRules, efficiency: float | None = None,
                with_curve: bool = True) -> Sizing:
-    """Size one build (DESIGN section 4). efficiency None = rules.default_efficiency.
+    """Size one build (the chain in site_src/method.md). efficiency None = rules.default_efficiency.
 
     with_curve False leaves out the plotted effort-against-pad-travel series
     (effort_curve None) for callers that need only the figures; the headline effort of a

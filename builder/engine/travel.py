@@ -123,7 +123,7 @@ def release_point(pad_needed: float, usable: float) -> float:
 
     pad_needed: pad travel from rest to full release, m; usable: usable_pad_travel, m
     (> 0). Returns a fraction (0.8 = at 80 % of the travel the pedal has). Definition of
-    our own (DESIGN 4).
+    our own (site_src/method.md).
 
     >>> round(release_point(0.118, 0.1397), 4)
     0.8447

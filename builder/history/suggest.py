@@ -27,7 +27,7 @@ flags judged on history (`judged_on_history`), exactly as `fitment check` does. 
 - margin: the smaller of the engine's travel margin and the margin after the shop's
   measured travel losses (the one travel-short is judged on);
 - worst-case pressure: static line pressure / efficiency (the calibrated efficiency, ideal
-  effort / calibrated effort, else the shop default), as DESIGN section 4 defines it;
+  effort / calibrated effort, else the shop default), as site_src/method.md defines it;
 - pressure headroom: the lowest rating of master and slave / worst-case pressure - 1
   (None without a rating).
 
