@@ -3,6 +3,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable
 
+from builder.bulk import collector_paused
 from builder.engine.linkage import GeometryError
 from builder.engine.result import Sizing
 from builder.engine.size import size_build
@@ -15,9 +16,10 @@ def size_all(builds: Iterable[Build], rules: ShopRules
     cannot push its master with the engine's reason."""
     sizings: dict[str, Sizing] = {}
     failures: list[tuple[Build, GeometryError]] = []
-    for build in builds:
-        try:
-            sizings[build.id] = size_build(build, rules, with_curve=False)
-        except GeometryError as error:
-            failures.append((build, error))
+    with collector_paused():
+        for build in builds:
+            try:
+                sizings[build.id] = size_build(build, rules, with_curve=False)
+            except GeometryError as error:
+                failures.append((build, error))
     return sizings, failures

@@ -231,17 +231,17 @@ class SliderCrankPedal:
             raise GeometryError("dead-centre", angle=toggle, swing=self.stop_angle)
         pad, rod, asin = self.pad_radius, self.rod, math.asin
         low, high = RATIO_RANGE
-        for theta, (_, rate, _) in zip(thetas, states):
-            if not low <= pad / rate <= high:
+        sweep = []  # arc_length and pushrod_angle written out: this runs for every sample
+        for theta, (stroke, rate, offset) in zip(thetas, states):
+            ratio = pad / rate
+            if not low <= ratio <= high:
                 raise GeometryError("ratio-out-of-range", angle=theta, swing=self.stop_angle,
-                                    ratio=pad / rate, bounds=RATIO_RANGE)
+                                    ratio=ratio, bounds=RATIO_RANGE)
+            sweep.append((pad * theta, stroke, ratio, asin(abs(offset) / rod)))
         self._thetas = thetas
         self._strokes = [st[0] for st in states]
         self._states = states
-        self._sweep = tuple(  # arc_length and pushrod_angle written out: this runs for every sample
-            (pad * t, s, pad / rate, asin(abs(offset) / rod))
-            for t, (s, rate, offset) in zip(thetas, states)
-        )
+        self._sweep = tuple(sweep)
 
     def solve(self, stroke: float) -> tuple[float, tuple[float, float, float]]:
         """(crank angle rad, state) where the pushrod has moved `stroke` (m) along the axis,

@@ -13,6 +13,7 @@ from collections.abc import Callable, Iterable
 from pathlib import Path
 
 from builder import model
+from builder.bulk import collector_paused
 from builder.fields import FIELDS
 from builder.presentation import unknown_family_message
 from builder.problems import InputError, Problem, nearest
@@ -476,16 +477,17 @@ def _builds(root: Path, catalogue: dict, paths: list[Path], progress: Progress |
     """Load build files. `in_builds`: those of `paths` under records/builds/; None when
     `paths` is the listing of records/builds/ itself. `families`: see known_families."""
     builds, problems, inside_builds = [], [], []
-    for done, path in enumerate(paths, 1):
-        inside = in_builds is None or path in in_builds
-        build, found = _load_build(path, catalogue, inside, families)
-        problems += found
-        if build is not None:
-            builds.append(build)
-        if inside:
-            inside_builds.append(path)
-        if progress is not None:
-            progress(done, len(paths))
+    with collector_paused():
+        for done, path in enumerate(paths, 1):
+            inside = in_builds is None or path in in_builds
+            build, found = _load_build(path, catalogue, inside, families)
+            problems += found
+            if build is not None:
+                builds.append(build)
+            if inside:
+                inside_builds.append(path)
+            if progress is not None:
+                progress(done, len(paths))
     listing = paths if in_builds is None else _record_files(root / "builds", root)[0]
     return builds, problems + _duplicate_ids(root / "builds", inside_builds, listing)
 
