@@ -123,10 +123,9 @@ def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
     from builder.located import unsizable, unsizable_problems
     from builder.records import validate_and_load
 
-    rules, builds, problems = validate_and_load(ctx.records, list(paths),
-                                                progress=progress_reporter("validating"))
-    if rules is not None:  # sizing finds pedal layouts that cannot push their master
-        problems += unsizable_problems(unsizable(builds, rules))
+    _, builds, problems = validate_and_load(ctx.records, list(paths),
+                                            progress=progress_reporter("validating"))
+    problems += unsizable_problems(unsizable(builds))  # pedals that cannot push their master
     if problems:
         fail(problems)
     click.echo(f"All records valid ({len(builds)} builds).")

@@ -4,20 +4,20 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from builder.engine.batch import size_all
+from builder.engine.batch import pedal_refusals
 from builder.presentation import geometry_message
 from builder.problems import Problem
 from builder.records import locate
 
 if TYPE_CHECKING:
     from builder.engine import GeometryError
-    from builder.model import Build, ShopRules
+    from builder.model import Build
 
 
-def unsizable(builds: list[Build], rules: ShopRules) -> list[tuple[Build, GeometryError]]:
+def unsizable(builds: list[Build]) -> list[tuple[Build, GeometryError]]:
     """Every build whose pedal cannot push its master, with the engine's reason (for
-    `fitment validate`, which needs no history)."""
-    return size_all(builds, rules)[1]
+    `fitment validate`, which needs no history and no other figure)."""
+    return pedal_refusals(builds)
 
 
 def unsizable_problems(failures: list[tuple[Build, GeometryError]]) -> list[Problem]:

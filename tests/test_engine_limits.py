@@ -16,7 +16,7 @@ import pytest
 import scipy.optimize
 
 from builder.engine import GeometryError, size_build
-from builder.engine.batch import size_all
+from builder.engine.batch import pedal_refusals, size_all
 from builder.engine.linkage import RATIO_RANGE, SliderCrankPedal
 from builder.model import PedalLayout
 from factories import make_build, make_rules
@@ -93,3 +93,19 @@ def test_size_all_sizes_what_it_can_and_names_what_it_cannot():
     assert sizings[good.id].effort_curve is None
     [(build, error)] = failures
     assert build is bad and error.reason == "ratio-out-of-range"
+
+
+def test_pedal_refusals_are_the_refusals_of_sizing():
+    # `fitment validate` asks only which pedals cannot push their master; the answer must be
+    # size_all's, build for build and reason for reason.
+    rules = make_rules()
+    good = make_build()
+    past_range = dataclasses.replace(make_build(layout=square(0.30, 0.0012, swing=0.05)), id="TS-002")
+    over_centre = dataclasses.replace(make_build(layout=square(0.28, 0.05, 0.14, swing=2.0)), id="TS-003")
+    no_lengths = dataclasses.replace(good, id="TS-004", pedal=dataclasses.replace(
+        good.pedal, pivot_to_clevis=None))
+    builds = [good, past_range, over_centre, no_lengths]
+    reasons = [(build.id, error.reason) for build, error in pedal_refusals(builds)]
+    assert reasons == [("TS-002", "ratio-out-of-range"), ("TS-003", "dead-centre"),
+                       ("TS-004", "no-lengths")]
+    assert reasons == [(build.id, error.reason) for build, error in size_all(builds, rules)[1]]

@@ -360,7 +360,7 @@ def layout_never_raises(env: Env, content: bytes) -> None:
     env.in_records.write_bytes(content)
     rules, builds, problems = validate_and_load(env.records, [env.in_records])
     if not problems:
-        problems = unsizable_problems(unsizable(builds, rules))
+        problems = unsizable_problems(unsizable(builds))
     if problems:
         assert_located(problems, env.in_records)
         assert any(p.field.startswith("pedal.layout") and p.line > 0 for p in problems), problems
@@ -422,7 +422,7 @@ def test_the_issues_layout_is_a_located_problem(env):
     content = _layout_text((-90, -296), (54, 12), (114, -60), 77)
     layout_never_raises(env, content)
     rules, builds, _ = validate_and_load(env.records, [env.in_records])
-    ((build, error),) = unsizable(builds, rules)
+    ((build, error),) = unsizable(builds)
     assert error.reason == "dead-centre"
     (problem,) = unsizable_problems([(build, error)])
     assert problem.field == "pedal.layout" and "dead centre" in problem.message
