@@ -4,7 +4,7 @@ Writes synthetic shops (tests/perf/synthetic_shop.py) into a scratch folder, the
 each in a fresh child process so one figure does not warm the next:
 
 - load + validate + size every build (builder.records.load_shop, then
-  builder.engine.size_build over every build) against a bare libyaml parse
+  builder.engine.batch.size_all over every build, as analyse() does) against a bare libyaml parse
   (yaml.load(..., Loader=yaml.CSafeLoader)) of the same files in the same process, file
   reads included in both; the two alternate, best of ROUNDS each;
 - the similar-builds query (SimilarityIndex.query) over the loaded history;
@@ -73,7 +73,7 @@ def child_load(records: str) -> dict:
     """Bare parse vs load + size, alternating, in this process; then analyse and queries."""
     import yaml
 
-    from builder.engine import size_build
+    from builder.engine.batch import size_all
     from builder.history import analyse
     from builder.records import load_shop, validate_paths
 
@@ -89,8 +89,7 @@ def child_load(records: str) -> dict:
 
     def ours():
         shop = load_shop(records)
-        for build in shop.builds:
-            size_build(build, shop.rules, with_curve=False)  # as analyse() does
+        size_all(shop.builds, shop.rules)  # as analyse() and the site do
         return shop
 
     bare_s, ours_s, ours_cpu, bare_cpu = [], [], [], []
