@@ -17,6 +17,7 @@ import pytest
 from click.testing import CliRunner
 
 from builder.cli import main
+from demo_proposals import DEMO_PROPOSALS
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "records"
@@ -338,39 +339,7 @@ def test_help_documents_the_exit_status():
 
 # --- the demo shop --------------------------------------------------------------------------
 
-DEMO_PROPOSAL = """\
-id: PR-0301
-status: draft
-vehicle: estate car, inline six (invented)
-gearbox:
-  family: JH-5R
-  fork_tip_moves: rearward
-clutch:
-  release_load: 1.5 kN
-  release_travel: 8 mm
-  clearance: 1.5 mm
-fork:
-  pivot_to_slave: 150 mm
-  pivot_to_bearing: 80 mm
-master:
-  bore: 5/8 in
-  stroke: 1.0 in
-  rated_pressure: 1200 psi
-slave:
-  kind: external
-  bore: 1 in
-  stroke: 1.0 in
-  rated_pressure: 1000 psi
-line:
-  length: 30 in
-  hose: braided_ptfe
-  fluid: DOT 4
-pedal:
-  pivot_to_pad: 11 in
-  pivot_to_clevis: 2.0 in
-  pad_travel: 6 in
-  clevis_positions: [1.75 in, 2.3 in]
-"""
+DEMO_PROPOSAL = DEMO_PROPOSALS["lever"]
 
 
 def test_a_failing_demo_proposal_gets_an_order_ready_alternative(tmp_path):
