@@ -2,7 +2,6 @@
 from __future__ import annotations
 
 import csv
-import hashlib
 import io
 import json
 import shutil
@@ -14,6 +13,7 @@ import pytest
 from click.testing import CliRunner
 
 from builder.cli import main
+from clitools import tree_digest
 
 ROOT = Path(__file__).resolve().parents[1]
 RECORDS = ROOT / "records"
@@ -33,15 +33,6 @@ TOP_KEYS = {"id", "status", "verdict", "ratios", "effort", "travel", "pressure_k
 
 def run(*args: str, records: Path = RECORDS):
     return CliRunner().invoke(main, ["--records", str(records), *args], catch_exceptions=False)
-
-
-def tree_digest(folder: Path) -> str:
-    digest = hashlib.sha256()
-    for path in sorted(folder.rglob("*")):
-        digest.update(str(path.relative_to(folder)).encode())
-        if path.is_file():
-            digest.update(path.read_bytes())
-    return digest.hexdigest()
 
 
 @pytest.fixture

@@ -9,7 +9,6 @@ of force is common practice, no source).
 from __future__ import annotations
 
 import csv
-import hashlib
 import io
 import os
 import shutil
@@ -24,6 +23,7 @@ from click.testing import CliRunner
 
 from builder.cli import main
 from builder.units import parse_quantity
+from clitools import tree_digest
 
 ROOT = Path(__file__).resolve().parents[1]
 UREG = pint.UnitRegistry()
@@ -86,15 +86,6 @@ def shop(tmp_path: Path) -> Path:
     shutil.copytree(ROOT / "schema", tmp_path / "schema")
     (tmp_path / "map.yaml").write_text(MAP, encoding="utf-8")
     return tmp_path / "records"
-
-
-def digest(folder: Path) -> str:
-    sha = hashlib.sha256()
-    for path in sorted(folder.rglob("*")):
-        sha.update(str(path.relative_to(folder)).encode())
-        if path.is_file():
-            sha.update(path.read_bytes())
-    return sha.hexdigest()
 
 
 def run(shop: Path, sheet: Path, *extra: str, map_file: Path | None = None):
@@ -201,20 +192,20 @@ def test_an_id_the_shop_has_with_other_content_is_refused_and_never_overwritten(
 def test_the_same_row_imported_again_is_skipped(shop):
     sheet = write_sheet(shop, sheet_text(row()))
     assert run(shop, sheet).exit_code == 0
-    before = digest(shop)
+    before = tree_digest(shop)
     again = run(shop, sheet)
     assert again.exit_code == 0
     assert "0 written, 1 skipped, 0 refused." in again.output
-    assert digest(shop) == before
+    assert tree_digest(shop) == before
 
 
 def test_dry_run_writes_nothing(shop):
     sheet = write_sheet(shop, sheet_text(row(), row(Job="18", MC_bore="1 mn")))
-    before = digest(shop)
+    before = tree_digest(shop)
     result = run(shop, sheet, "--dry-run")
     assert result.exit_code == 1
     assert "would write " in result.output and "Dry run, nothing written: 1 would be written" in result.output
-    assert digest(shop) == before
+    assert tree_digest(shop) == before
 
 
 @pytest.mark.parametrize("encoding, bom, delimiter", [

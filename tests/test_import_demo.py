@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import csv
 import datetime as dt
-import hashlib
 import io
 import json
 import shutil
@@ -21,6 +20,7 @@ from click.testing import CliRunner
 
 from builder.demo import spreadsheet as demo_spreadsheet
 from builder.cli import main
+from clitools import tree_digest
 
 ROOT = Path(__file__).resolve().parents[1]
 RECORDS = ROOT / "records"
@@ -33,15 +33,6 @@ SLIPS = {9: (14, "master.bore", "unknown unit 'mn'"),
 
 def run(records: Path, *args: str):
     return CliRunner().invoke(main, ["--records", str(records), *args], catch_exceptions=False)
-
-
-def digest(folder: Path) -> str:
-    sha = hashlib.sha256()
-    for path in sorted(folder.rglob("*")):
-        sha.update(str(path.relative_to(folder)).encode())
-        if path.is_file():
-            sha.update(path.read_bytes())
-    return sha.hexdigest()
 
 
 @pytest.fixture
@@ -131,20 +122,20 @@ def test_imported_records_validate_and_size(shop):
 
 def test_a_second_import_adds_nothing(shop):
     run(shop, "import", str(SHEET), "--map", str(MAP))
-    before = digest(shop)
+    before = tree_digest(shop)
     again = run(shop, "import", str(SHEET), "--map", str(MAP))
     assert again.exit_code == 1  # the three slips are still in the sheet
     assert "0 written, 27 skipped, 3 refused" in again.output
-    assert digest(shop) == before
+    assert tree_digest(shop) == before
 
 
 def test_dry_run_writes_nothing_and_says_what_it_would_do(shop):
-    before = digest(shop)
+    before = tree_digest(shop)
     result = run(shop, "import", str(SHEET), "--map", str(MAP), "--dry-run")
     assert result.exit_code == 1
     assert "Dry run, nothing written: 27 would be written, 0 skipped, 3 refused" in result.output
     assert result.output.count("would write ") == 27
-    assert digest(shop) == before
+    assert tree_digest(shop) == before
 
 
 def test_fixing_the_slips_imports_the_rest(shop, tmp_path):

@@ -17,10 +17,9 @@ import tempfile
 from pathlib import Path
 
 import pytest
-from click.testing import CliRunner
 
-from builder.cli import main
 from builder.records import load_shop, validate_paths
+from clitools import assert_refused, invoke
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO_BUILDS = len(list((ROOT / "records" / "builds").rglob("*.yaml")))
@@ -36,19 +35,6 @@ def shop(tmp_path: Path, monkeypatch) -> Path:
     shutil.copytree(ROOT / "schema", tmp_path / "schema")
     monkeypatch.chdir(tmp_path)
     return tmp_path / "records"
-
-
-def invoke(records: Path, *args: str):
-    return CliRunner().invoke(main, ["--records", str(records), *args])
-
-
-def assert_refused(result, *expected: str) -> None:
-    """Exit 1, no traceback, every expected text in the output."""
-    assert result.exit_code == 1, result.output
-    assert isinstance(result.exception, SystemExit), repr(result.exception)
-    assert "Traceback" not in result.output
-    for text in expected:
-        assert text in result.output, result.output
 
 
 def every_command_refuses(records: Path, *expected: str) -> None:

@@ -20,12 +20,11 @@ import time
 from pathlib import Path
 
 import pytest
-from click.testing import CliRunner
 
-from builder.cli import main
 from builder.site import PublishError, publish_site
 from builder.site import publish as site_publish
 from site_shops import analysis
+from clitools import assert_refused, invoke
 
 ROOT = Path(__file__).resolve().parents[1]
 KEEP = 6  # builds kept in the copied shop: enough for every page kind, quick to build
@@ -73,18 +72,6 @@ def assert_complete_site(out: Path, records: Path) -> None:
         assert (len(data), hashlib.sha256(data).hexdigest()) == (size, digest), relative
 
 
-def fitment(records: Path, *args: str):
-    return CliRunner().invoke(main, ["--records", str(records), *args])
-
-
-def assert_refused(result, *expected: str) -> None:
-    assert result.exit_code == 1, result.output
-    assert isinstance(result.exception, SystemExit), repr(result.exception)
-    assert "Traceback" not in result.output
-    for text in expected:
-        assert text in result.output, result.output
-
-
 # --- never into records/, never over what it did not write -------------------------------------
 
 def test_out_dot_beside_records_with_a_marker_is_refused(shop):
@@ -92,7 +79,7 @@ def test_out_dot_beside_records_with_a_marker_is_refused(shop):
     # `--out .` deleted records/.
     (shop.parent / ".fitment-site").write_text("Built by fitment\n")
     before = tree(shop)
-    assert_refused(fitment(shop, "site", "build", "--out", "."), "holds the records folder")
+    assert_refused(invoke(shop, "site", "build", "--out", "."), "holds the records folder")
     assert tree(shop) == before
 
 
@@ -100,7 +87,7 @@ def test_out_dot_beside_records_with_a_marker_is_refused(shop):
 def test_out_in_or_at_records_is_refused_and_nothing_is_written_there(shop, out):
     (shop / ".fitment-site").write_text("Built by fitment\n")  # a marker is not trusted
     before = tree(shop)
-    result = fitment(shop, "site", "build", "--out", out)
+    result = invoke(shop, "site", "build", "--out", out)
     assert_refused(result, "records folder")
     assert tree(shop) == before
     assert sorted(p.name for p in shop.parent.iterdir()) == ["records", "schema", "temp"]
@@ -110,9 +97,9 @@ def test_out_reaching_records_through_links_is_refused(shop):
     (shop.parent / "to-records").symlink_to(shop, target_is_directory=True)
     (shop.parent / "publish").symlink_to(shop / "builds", target_is_directory=True)
     before = tree(shop)
-    assert_refused(fitment(shop, "site", "build", "--out", "to-records"), "is the records folder")
-    assert_refused(fitment(shop, "site", "build", "--out", "publish/site"), "inside the records folder")
-    assert_refused(fitment(shop, "site", "build", "--out", "to-records/.."), "holds the records folder")
+    assert_refused(invoke(shop, "site", "build", "--out", "to-records"), "is the records folder")
+    assert_refused(invoke(shop, "site", "build", "--out", "publish/site"), "inside the records folder")
+    assert_refused(invoke(shop, "site", "build", "--out", "to-records/.."), "holds the records folder")
     assert tree(shop) == before
 
 
@@ -164,7 +151,7 @@ def test_an_unchanged_site_is_replaced_and_stays_a_real_folder(tmp_path):
 
 def test_out_under_a_file_is_a_plain_error(shop):
     Path("afile").write_text("not a folder\n")
-    result = fitment(shop, "site", "build", "--out", "afile/site")
+    result = invoke(shop, "site", "build", "--out", "afile/site")
     assert_refused(result, "afile:0:0: site: is not a folder")
     assert Path("afile").read_text() == "not a folder\n"
 
@@ -237,7 +224,7 @@ def leftovers(records: Path, out: Path) -> list[str]:
 @pytest.mark.parametrize("point", ["after-mkdocs", "after-swap"])
 def test_a_build_killed_at_any_step_leaves_a_complete_site_and_the_next_removes_its_leftovers(shop, point):
     out = shop.parent / "published"
-    assert fitment(shop, "site", "build", "--out", str(out)).exit_code == 0
+    assert invoke(shop, "site", "build", "--out", str(out)).exit_code == 0
     old = tree(out)
     record = shop / "builds" / "2023" / "HW-0102.yaml"  # a change, so the new site differs
     record.write_text(record.read_text().replace("\noutcome: ", "\noutcome: second edition, ", 1))
@@ -245,7 +232,7 @@ def test_a_build_killed_at_any_step_leaves_a_complete_site_and_the_next_removes_
     assert_complete_site(out, shop)
     assert tree(out) == old if point == "after-mkdocs" else tree(out) != old
     assert leftovers(shop, out)  # what the kill left: a staging folder, a docs folder
-    assert fitment(shop, "site", "build", "--out", str(out)).exit_code == 0
+    assert invoke(shop, "site", "build", "--out", str(out)).exit_code == 0
     assert_complete_site(out, shop)
     assert leftovers(shop, out) == []
 
@@ -254,7 +241,7 @@ def test_without_the_atomic_exchange_the_next_build_repairs_a_kill_between_renam
     # The fallback's one window: --out is missing between its two renames. The new site is
     # then whole in its staging folder, and the next build puts it in place first.
     out = shop.parent / "published"
-    assert fitment(shop, "site", "build", "--out", str(out)).exit_code == 0
+    assert invoke(shop, "site", "build", "--out", str(out)).exit_code == 0
     killed_build(shop, out, "no-exchange")
     assert not out.exists()
     removed = site_publish.remove_leftovers(out)
@@ -293,7 +280,7 @@ def test_leftover_cleaning_removes_only_provably_abandoned_work_folders(shop, tm
         info = dead.stat()
         (dead / site_publish.OWNER).write_text(json.dumps(
             {"tool": "fitment", "pid": 1, "device": info.st_dev, "inode": info.st_ino}))
-        assert fitment(shop, "site", "build", "--out", str(out)).exit_code == 0
+        assert invoke(shop, "site", "build", "--out", str(out)).exit_code == 0
         assert not dead.exists()
         assert (live / "working.txt").read_text() == "busy"
     assert (plain / "precious.txt").read_text() == "precious"
@@ -319,7 +306,7 @@ def test_a_parent_folder_that_cannot_be_written_is_a_plain_error(shop, monkeypat
         return real_mkdtemp(prefix=prefix, dir=dir, **kwargs)
 
     monkeypatch.setattr(site_publish.tempfile, "mkdtemp", mkdtemp)
-    result = fitment(shop, "site", "build", "--out", "published")
+    result = invoke(shop, "site", "build", "--out", "published")
     assert_refused(result, "site: could not write the site: Permission denied")
     assert not Path("published").exists()
 
