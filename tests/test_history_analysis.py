@@ -163,3 +163,19 @@ def test_worst_pressure_and_ratings_follow_the_calibrated_efficiency():
     kinder = dataclasses.replace(calibrated, efficiency=0.95)
     assert not [f for f in judged_on_history(sizing, kinder, rules, build).flags
                 if f.code == "pressure-over-rating"]
+
+
+def test_history_imports_no_wording_units_yaml_or_site():
+    # Project rule (DEVELOPERS.md): history returns numbers, codes and fields; words are made
+    # in builder.presentation only, and history never reads records itself.
+    import pathlib
+    import subprocess
+    import sys
+    modules = ", ".join(f"builder.history.{name}" for name in (
+        "analysis", "calibration", "deltas", "reference", "robust", "similar", "suggest"))
+    code = (f"import sys, {modules}; "
+            "print(sorted(m for m in ('pint', 'yaml', 'mkdocs', 'builder.presentation', "
+            "'builder.units', 'builder.records', 'builder.site') if m in sys.modules))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True, cwd=pathlib.Path(__file__).parents[1]).stdout.strip()
+    assert out == "[]"
