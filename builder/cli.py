@@ -265,7 +265,7 @@ def new(ctx: Context, build_id: str, like_id: str | None) -> None:
 
     path, to_fill = _run(create)
     click.echo(f"Wrote {path}" + ("; fill in before sizing it:" if to_fill else ""))
-    for problem in to_fill:
+    for problem in sorted(to_fill, key=lambda p: (p.line, p.col)):  # top to bottom, as in the file
         click.echo(terminal_safe(f"  {problem}"))
 
 

@@ -17,8 +17,8 @@ _TOP_KEY = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)\s*:")
 _DROPPED = {"measured", "outcome", "notes"}
 
 TEMPLATE = """\
-# Draft {id}: every value below is a placeholder. Replace each one with what the
-# parts and the car actually have before trusting `fitment check`.
+# Draft {id}: every xx below is a placeholder. Replace each one with what the parts and
+# the car actually have (keep or change the unit) before trusting `fitment check`.
 id: {id}
 date: {date}
 status: draft
@@ -26,29 +26,29 @@ technician: XX
 vehicle: describe the car generically
 gearbox:
   family: FAMILY
-  fork_tip_moves: rearward        # forward | rearward | none (concentric slave)
+  fork_tip_moves: xx              # forward | rearward | none (concentric slave)
 clutch:
-  release_load: 400 lbf           # peak load at the release bearing
-  release_travel: 0.30 in         # bearing travel for full release
-  clearance: 0.06 in              # bearing travel before it meets the fingers
+  release_load: xx lbf            # peak load at the release bearing
+  release_travel: xx in           # bearing travel for full release
+  clearance: xx in                # bearing travel before it meets the fingers
 fork:                             # delete for a concentric slave
-  pivot_to_slave: 5.5 in
-  pivot_to_bearing: 2.75 in
-master:
-  bore: 3/4 in
-  stroke: 1.40 in
+  pivot_to_slave: xx in
+  pivot_to_bearing: xx in
+master:                           # or `part: <catalogue id>` instead of bore and stroke
+  bore: xx in
+  stroke: xx in
 slave:
-  kind: external                  # external | concentric
-  bore: 7/8 in
-  stroke: 1.10 in
+  kind: xx                        # external | concentric
+  bore: xx in
+  stroke: xx in
 line:
-  length: 36 in
-  hose: braided_ptfe              # rubber | braided_ptfe | steel
-  fluid: DOT 4                    # DOT 3 | DOT 4 | DOT 5 | DOT 5.1
+  length: xx in
+  hose: xx                        # rubber | braided_ptfe | steel
+  fluid: xx                       # DOT 3 | DOT 4 | DOT 5 | DOT 5.1
 pedal:
-  pivot_to_pad: 11 in
-  pivot_to_clevis: 2 in
-  pad_travel: 6 in
+  pivot_to_pad: xx in
+  pivot_to_clevis: xx in
+  pad_travel: xx in
 """
 
 

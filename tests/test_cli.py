@@ -10,6 +10,7 @@ import sys
 from pathlib import Path
 
 import pytest
+import yaml
 from click.testing import CliRunner
 
 from builder.cli import main
@@ -242,6 +243,28 @@ def test_new_like_copies_inputs_then_refuses_a_second_time(shop_copy: Path):
     assert run("validate", records=shop_copy).exit_code == 0
 
 
+def leaves(mapping: dict, prefix: str = "") -> set[str]:
+    """Dotted keys of every value in a mapping that is not itself a mapping."""
+    found = set()
+    for key, value in mapping.items():
+        name = f"{prefix}{key}"
+        found |= leaves(value, name + ".") if isinstance(value, dict) else {name}
+    return found
+
+
+# What a technician types over the template's stand-ins, top to bottom (invented values).
+FILLED = [("technician: XX", "technician: RL"), ("describe the car generically", "invented sedan"),
+          ("family: FAMILY", "family: VK-4"), ("fork_tip_moves: xx", "fork_tip_moves: forward"),
+          ("release_load: xx lbf", "release_load: 400 lbf"), ("release_travel: xx in", "release_travel: 0.30 in"),
+          ("clearance: xx in", "clearance: 0.06 in"), ("pivot_to_slave: xx in", "pivot_to_slave: 5.5 in"),
+          ("pivot_to_bearing: xx in", "pivot_to_bearing: 2.75 in"), ("bore: xx in", "bore: 3/4 in"),
+          ("stroke: xx in", "stroke: 1.40 in"), ("kind: xx", "kind: external"), ("bore: xx in", "bore: 7/8 in"),
+          ("stroke: xx in", "stroke: 1.10 in"), ("length: xx in", "length: 36 in"),
+          ("hose: xx", "hose: braided_ptfe"), ("fluid: xx", "fluid: DOT 4"),
+          ("pivot_to_pad: xx in", "pivot_to_pad: 11 in"), ("pivot_to_clevis: xx in", "pivot_to_clevis: 2 in"),
+          ("pad_travel: xx in", "pad_travel: 6 in")]
+
+
 def test_new_template_lists_what_to_fill_in_and_rejects_bad_ids(shop_copy: Path):
     written = run("new", "HW-0998", records=shop_copy)
     assert written.exit_code == 0, written.output
@@ -250,8 +273,18 @@ def test_new_template_lists_what_to_fill_in_and_rejects_bad_ids(shop_copy: Path)
     left = run("validate", records=shop_copy)  # the template's placeholders are problems
     assert left.exit_code == 1
     fields = {line.split(": ")[1] for line in left.output.splitlines() if line.startswith(str(path))}
-    assert fields == {"technician", "vehicle", "gearbox.family"}
-    assert left.output.count("fill in the ") == 3
+    # every value the template writes is a stand-in (its header says so): each leaf of the
+    # file except id, date and status, read back with PyYAML, must be reported
+    assert fields == leaves(yaml.safe_load(path.read_text())) - {"id", "date", "status"}
+    assert left.output.count("fill in the ") == len(fields) == 20
+    lines = [line for line in written.output.splitlines() if "fill in the " in line]
+    assert [int(line.split(":")[1]) for line in lines] == sorted(int(line.split(":")[1]) for line in lines)
+    # filled in, the same file is a record
+    filled = path.read_text()
+    for stand_in, value in FILLED:
+        filled = filled.replace(stand_in, value, 1)
+    path.write_text(filled)
+    assert run("validate", records=shop_copy).exit_code == 0, run("validate", records=shop_copy).output
     path.unlink()
     bad = run("new", "../evil", records=shop_copy)
     assert bad.exit_code == 1 and "expected an id like" in bad.output

@@ -99,6 +99,11 @@ def test_catalogue_gearbox_families_need_no_declaration(shop):
     ("family: BQ-4F", "family: FAMILY", "gearbox.family"),
     ("bracket: cast boss, spacer plate", "bracket: TBD", "slave.bracket"),
     ("outcome: releases cleanly; engagement in the middle of the pedal", "outcome: TODO", "outcome"),
+    # numbers and choices left as the template writes them (`fitment new`)
+    ("release_load: 305 lbf", "release_load: xx lbf", "clutch.release_load"),
+    ("fork_tip_moves: forward", "fork_tip_moves: xx", "gearbox.fork_tip_moves"),
+    ("hose: braided_ptfe", "hose: TBD", "line.hose"),
+    ("pad_travel: 6.8 in", "pad_travel: ?? in", "pedal.pad_travel"),
 ])
 def test_every_placeholder_left_in_a_record_is_located(shop, old, new, field):
     text = edit(sample(shop), old, new)

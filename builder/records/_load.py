@@ -15,8 +15,8 @@ from pathlib import Path
 from builder import model
 from builder.bulk import collector_paused
 from builder.fields import FIELDS
-from builder.presentation import unknown_family_message
-from builder.problems import InputError, Problem, nearest
+from builder.presentation import placeholder_message, unknown_family_message
+from builder.problems import PLACEHOLDER, InputError, Problem, nearest
 from builder.records import convert as f
 from builder.records._schema import dotted, is_valid_fast, schema_problems
 from builder.records._yaml import NeedsCare, careful_load, fast_load, read_text
@@ -56,12 +56,28 @@ def _load_text(text: str, shown: str, schema: str, convert: Callable[[dict, f.Pr
     if doc.data is None and report.problems:  # unreadable; a document of just `null` goes on
         return None, report.problems
     for where, unknown_key, field, message in schema_problems(schema, doc.data):
+        code = None
         if not unknown_key:
             report.bad.append(where)
-            message += f.accepted(f.range_key(schema, where, doc.data))
-        report(where, message, at_key=unknown_key, field=field)
+            found = _value_at(doc.data, where)
+            if f.left_to_fill(found, field):  # a template's `xx lbf`: say what to fill in
+                label = FIELDS[field].label if field in FIELDS else field
+                message, code = placeholder_message(label, found), PLACEHOLDER
+            else:
+                message += f.accepted(f.range_key(schema, where, doc.data))
+        report(where, message, at_key=unknown_key, field=field, code=code)
     result = None if report.blocked(()) else convert(doc.data, report)
     return (None, report.problems) if report.problems else (result, [])
+
+
+def _value_at(data: object, where: tuple) -> object:
+    """The value at a schema error's path in a document, or None where the path breaks off."""
+    for step in where:
+        try:
+            data = data[step]
+        except (KeyError, IndexError, TypeError):
+            return None
+    return data
 
 
 def _convert_rules(data: dict, report: f.ProblemCollector) -> model.ShopRules | None:

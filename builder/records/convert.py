@@ -194,6 +194,21 @@ def is_placeholder(value: object, key: str) -> bool:
             or _PLACEHOLDER.fullmatch(stripped) is not None)
 
 
+def left_to_fill(value: object, key: str) -> bool:
+    """Whether a value the schema refused is a template stand-in: placeholder text (see
+    is_placeholder), or a quantity whose number is one (`xx lbf`, `?? in`).
+
+    >>> left_to_fill("xx lbf", "clutch.release_load"), left_to_fill("xx", "line.hose")
+    (True, True)
+    >>> left_to_fill("FORK_TIP_MOVES", "gearbox.fork_tip_moves"), left_to_fill("4OO lbf", "clutch.release_load")
+    (True, False)
+    """
+    if type(value) is not str:
+        return False
+    number, _, _ = value.strip().rpartition(" ")
+    return is_placeholder(value, key) or (bool(number) and _PLACEHOLDER.fullmatch(number) is not None)
+
+
 def checked_text(value: object, key: str, report: ProblemCollector, where: tuple) -> str | None:
     """Free text of field `key` (dotted); a placeholder left in it is reported ("fill in")."""
     if type(value) is str and is_placeholder(value, key):
