@@ -114,6 +114,37 @@ def test_reference_and_builds_tables_fit_a_1280_px_window(page, served):
     page.watch.assert_clean()
 
 
+# A figure as the site prints it: a number, one space (or no-break space), its unit.
+SPLIT_FIGURES = r"""() => {
+    const figure = /[-+]?\d+(?:\.\d+)?[ \u00a0](?:in|mm|lbf|N|psi|kPa|mL|%)(?![\w^])/g;
+    const split = [];
+    for (const cell of document.querySelectorAll('article td')) {
+        const walker = document.createTreeWalker(cell, NodeFilter.SHOW_TEXT);
+        for (let node = walker.nextNode(); node; node = walker.nextNode()) {
+            for (const match of node.data.matchAll(figure)) {
+                const range = document.createRange();
+                range.setStart(node, match.index);
+                range.setEnd(node, match.index + match[0].length);
+                const tops = new Set([...range.getClientRects()].map(r => Math.round(r.top)));
+                if (tops.size > 1) split.push(match[0]);
+            }
+        }
+    }
+    return split;
+}"""
+
+
+def test_no_figure_in_a_table_is_split_from_its_unit(page, served):
+    # In a narrow column a line may break before "(22.2 mm)", never inside "22.2 mm" or
+    # "+41.6 %": a line that starts with a bare unit is misread at the bench.
+    page.set_viewport_size({"width": 1000, "height": 900})  # narrower columns than 1280 px
+    for path in ("reference/", "builds/"):
+        page.goto(served + path)
+        page.wait_for_load_state("networkidle")
+        assert page.evaluate(SPLIT_FIGURES) == [], path
+    page.watch.assert_clean()
+
+
 def test_a_build_page_prints_as_a_bench_sheet_without_navigation(page, served, tmp_path):
     page.goto(served + "builds/TS-101/")
     page.wait_for_load_state("networkidle")

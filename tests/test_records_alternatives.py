@@ -177,6 +177,8 @@ def test_the_site_input_table_shows_the_alternatives_in_both_systems():
         "  pad_travel: 150 mm\n", "  pad_travel: 150 mm\n  clevis_positions: [2 in]\n"),
         {}, "p.yaml", rules=rules)
     rows = dict((label, value) for label, value in section_rows(build.pedal, Display(rules), "pedal"))
-    assert rows["other clevis positions"] == "2 in (50.8 mm)"
-    assert rows["layout other clevis points (x, y)"] == (
+    # a no-break space keeps each number with its unit in a narrow table cell
+    shown = {label: value.replace("\u00a0", " ") for label, value in rows.items()}
+    assert shown["other clevis positions"] == "2 in (50.8 mm)" != rows["other clevis positions"]
+    assert shown["layout other clevis points (x, y)"] == (
         r"\-0.315 in (-8 mm), \-2.362 in (-60 mm)")  # a leading minus is Markdown-escaped

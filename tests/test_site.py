@@ -90,6 +90,10 @@ def search_docs(out: Path) -> list[dict]:
     return json.loads((out / "search" / "search_index.json").read_text())["docs"]
 
 
+def search_config(out: Path) -> dict:
+    return json.loads((out / "search" / "search_index.json").read_text())["config"]
+
+
 # --- escaping (Python-Markdown alone, no mkdocs) --------------------------------------------
 
 LINE_START_TRICKS = ["1. one", "- item", "+ item", "* item", "# head #", "===", "---", "***",
@@ -186,6 +190,10 @@ def test_search_index_holds_family_part_bore_and_note_words(site):
     _, out = site
     text = " ".join(d["title"] + " " + d["text"] for d in search_docs(out)
                     if d["location"].startswith("builds/TS-101/"))
+    # the index's separator is [\s\-]+: JavaScript's \s takes the no-break space in "0.875 in"
+    # as it takes a space (ECMA-262, WhiteSpace), as Python's str.split() does
+    assert search_config(out)["separator"] == r"[\s\-]+"
+    text = " ".join(text.split())
     for words in ("RB-6", "MC-750", "SL-875", "0.875 in", "pressure bleeder"):
         assert words in text
 

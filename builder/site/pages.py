@@ -66,6 +66,9 @@ def part_link(kind: str, part_id: str, where: str) -> str:
 
 # --- display helpers --------------------------------------------------------------------
 
+NO_BREAK_SPACE = "\u00a0"
+_AFTER_NUMBER = re.compile(r"(?<=\d) ")
+
 class Display:
     """Quantities in both unit systems, the shop's primary first; Markdown-escaped."""
 
@@ -73,7 +76,7 @@ class Display:
         self.primary = rules.display_units  # "imperial" | "metric" (the shop schema's enum)
 
     def q(self, value: float | None, dimension: str) -> str:
-        return md(say.quantity(value, dimension, self.primary))
+        return kept_together(md(say.quantity(value, dimension, self.primary)))
 
     def chart_value(self, value_si: float, dimension: str) -> float:
         return value_si / say.chart_unit(dimension, self.primary)[1]
@@ -92,12 +95,19 @@ def free(value: object) -> str:
     return f'<span class="fitment-free">{text}</span>' if text else ""
 
 
+def kept_together(figure: str) -> str:
+    """An escaped figure whose number and unit cannot be split over two lines in a narrow
+    table cell (a no-break space after each number): `0.75 in (19.1 mm)` may break before
+    the bracket, never between 19.1 and mm. After md(), which folds every space."""
+    return _AFTER_NUMBER.sub(NO_BREAK_SPACE, figure)
+
+
 def pct(fraction: float | None, signed: bool = False) -> str:
-    return md(say.percent(fraction, signed))
+    return kept_together(md(say.percent(fraction, signed)))
 
 
 def ratio(value: float | None) -> str:
-    return md(say.ratio(value))
+    return md(say.ratio(value)).replace(" ", NO_BREAK_SPACE)  # `5.60 : 1` is one figure
 
 
 def heading(title: str, boost: float | None = None, hide: Sequence[str] = ()) -> str:
