@@ -208,6 +208,19 @@ def test_dry_run_writes_nothing(shop):
     assert tree_digest(shop) == before
 
 
+def test_a_dry_run_refuses_a_row_the_records_loader_refuses(shop):
+    # the loader's own check (status measured needs a measured section) decides a dry run too
+    sheet = write_sheet(shop, sheet_text(row(Job="16"), row(Job="17", Effort="")))
+    before = tree_digest(shop)
+    result = run(shop, sheet, "--dry-run")
+    assert result.exit_code == 1, result.output
+    problems = refused_lines(result, sheet)
+    assert [(p[0], p[1], p[2]) for p in problems] == [(3, column("Result"), "status")]
+    assert "needs a measured section" in problems[0][3]
+    assert "Dry run, nothing written: 1 would be written" in result.output
+    assert tree_digest(shop) == before
+
+
 @pytest.mark.parametrize("encoding, bom, delimiter", [
     ("cp1252", False, ","), ("cp1252", False, ";"), ("utf-8", True, ","), ("utf-8", True, ";"),
     ("utf-8", False, "\t"), ("utf-8", False, "|"), ("utf-16", False, "\t"),

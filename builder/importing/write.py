@@ -25,7 +25,7 @@ from builder.importing.problems import CellProblem
 from builder.importing.rows import RowReader, RowRecord
 from builder.importing.sheet import Sheet, UnknownSheet, read_sheet
 from builder.problems import InputError, Problem
-from builder.records import load_build_file, load_catalogue, load_rules
+from builder.records import load_build_file, load_catalogue, load_rules, parse_build
 from builder.records._schema import schema
 from builder.records.writer import dump, ordered
 
@@ -88,24 +88,23 @@ def import_sheet(sheet_path: str | os.PathLike, map_path: str | os.PathLike, rec
     _refuse_shared_ids(rows, sheet.path)
     existing = _existing_ids(records / "builds")
     builds_dir = records / "builds"
-    with tempfile.TemporaryDirectory(prefix="fitment-import-") as scratch:
-        for record in rows:
-            if record.problems:
-                report.refused += record.problems
-                continue
-            target = builds_dir / str(record.date.year) / f"{record.id}.yaml"
-            text = record_text(record.data, target, records)
-            if record.id in existing:
-                _existing(record, text, existing[record.id], sheet.path, report)
-                continue
-            problems = _load_problems(record, text, Path(scratch), shop, sheet.path)
-            if not problems and not dry_run:
-                problems = _write(record, text, target, builds_dir, shop, sheet.path)
-            if problems:
-                report.refused += problems
-            else:
-                report.written.append(Outcome(record.row, record.id, str(target)))
-                existing[record.id] = target
+    for record in rows:
+        if record.problems:
+            report.refused += record.problems
+            continue
+        target = builds_dir / str(record.date.year) / f"{record.id}.yaml"
+        text = record_text(record.data, target, records)
+        if record.id in existing:
+            _existing(record, text, existing[record.id], sheet.path, report)
+            continue
+        problems = _load_problems(record, text, target, shop, sheet.path)
+        if not problems and not dry_run:
+            problems = _write(record, text, target, builds_dir, shop, sheet.path)
+        if problems:
+            report.refused += problems
+        else:
+            report.written.append(Outcome(record.row, record.id, str(target)))
+            existing[record.id] = target
     report.refused.sort(key=lambda p: (p.row, p.col, p.field))
     return report
 
@@ -174,16 +173,13 @@ def _existing(record: RowRecord, text: str, path: Path, sheet_path: str, report:
         "edited since)", header))
 
 
-def _load_problems(record: RowRecord, text: str, scratch: Path, shop: model.Shop, sheet_path: str) -> list[CellProblem]:
-    """The loader's verdict on the record text, each problem put on the cell it came from."""
-    probe = scratch / f"{record.id}.yaml"
-    probe.write_text(text, encoding="utf-8")
+def _load_problems(record: RowRecord, text: str, target: Path, shop: model.Shop, sheet_path: str) -> list[CellProblem]:
+    """The loader's verdict on the record text (read as the file `target` would be, without
+    writing it anywhere), each problem put on the cell it came from."""
     try:
-        load_build_file(probe, shop)
+        parse_build(text, shop.parts, str(target), stem=target.stem, rules=shop.rules)
     except InputError as error:
         return [_on_cell(record, problem, sheet_path) for problem in error.problems]
-    finally:
-        probe.unlink()
     return []
 
 
