@@ -8,6 +8,7 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
+import pint
 import pytest
 import yaml
 from jsonschema import Draft202012Validator
@@ -18,6 +19,7 @@ from builder.problems import InputError
 ROOT = Path(__file__).resolve().parents[1]
 SCHEMA = json.loads((ROOT / "schema" / "import-map.schema.json").read_text())
 DEMO_MAP = ROOT / "records" / "import" / "old-builds.map.yml"
+UREG = pint.UnitRegistry()
 
 GOOD = """\
 id: {column: "Job", prefix: "OLD-", digits: 4}
@@ -103,6 +105,16 @@ def test_map_problems_are_located(tmp_path, change, line, col, field, words):
     assert (problem.line, problem.col) == (line, col), problem
     for word in words:
         assert word in problem.message, problem
+
+
+def test_an_unknown_unit_is_answered_with_an_example_of_the_fields_own_dimension(tmp_path):
+    text = GOOD.replace('  notes: ["Notes", "Notes 2"]', '  slave.piston_area: {column: "Area", unit: furlongs_per_bar}')
+    problem = next(p for p in problems_of(tmp_path, text) if p.field == "fields.slave.piston_area.unit")
+    assert "unknown unit 'furlongs_per_bar'" in problem.message and "an area" in problem.message, problem
+    assert "psi" not in problem.message and "MPa" not in problem.message, problem  # pressure units
+    # the example unit it gives is an area: pint reads in^2 as [length] ** 2
+    assert "in^2" in problem.message, problem
+    assert UREG.Quantity(1, "in^2").dimensionality == UREG.Quantity(1, "m").dimensionality ** 2
 
 
 def test_broken_yaml_and_missing_keys_are_located(tmp_path):

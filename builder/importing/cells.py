@@ -92,7 +92,7 @@ def quantity(cell: object, spec: FieldSpec, column_unit: str | None, decimal: st
                         "spreadsheet program turns a typed 7/8 into 8 July: format the column as text and "
                         "type the value again")
     if isinstance(cell, bool):
-        raise CellError(f"expected {_expected(spec.dimension)}; found {text(cell)}")
+        raise CellError(f"expected {expected(spec.dimension)}; found {text(cell)}")
     typed = text(cell)
     if isinstance(cell, (int, float)):
         magnitude, unit = typed, ""
@@ -106,11 +106,11 @@ def quantity(cell: object, spec: FieldSpec, column_unit: str | None, decimal: st
     found = unit_dimension(spelled)
     if found is None:
         raise CellError(f"unknown unit {unit!r} in {typed!r} (no length, area, force, pressure or angle "
-                        f"unit); expected {_expected(spec.dimension)}")
+                        f"unit); expected {expected(spec.dimension)}")
     record = f"{magnitude} {spelled}"
     if found != spec.dimension:
         meaning = "" if typed == record else f" ({record})"
-        raise CellError(f"expected {_expected(spec.dimension)}; found {typed!r}{meaning}, which is "
+        raise CellError(f"expected {expected(spec.dimension)}; found {typed!r}{meaning}, which is "
                         f"{_noun(found, article=True)}")
     try:
         value = parse_quantity(record, spec.dimension, signed=True)
@@ -138,7 +138,7 @@ def _split(typed: str, dimension: str, decimal: str) -> tuple[str, str]:
                             "add decimal: \",\" to the map")
     match = _CELL_QUANTITY.fullmatch(cleaned)
     if match is None or not cleaned:
-        raise CellError(f"{typed!r} is not a number with a unit; expected {_expected(dimension)}")
+        raise CellError(f"{typed!r} is not a number with a unit; expected {expected(dimension)}")
     sign = "-" if match["sign"] == "-" else ""
     if match["dec"] is not None:
         number = match["dec"]
@@ -184,7 +184,8 @@ def _noun(dimension: str | None, article: bool = False) -> str:
     return f"an {noun}" if noun[0] in "aeiou" else f"a {noun}"
 
 
-def _expected(dimension: str) -> str:
+def expected(dimension: str) -> str:
+    """What a quantity of `dimension` looks like, for a message: "a length, e.g. 7/8, ..."."""
     example = _EXAMPLES.get(dimension) or DIMENSIONS[dimension][1]
     return f"{_noun(dimension, article=True)}, e.g. {example}"
 

@@ -210,8 +210,7 @@ class _Reader:
         spelled = cells.normalize_unit(unit)
         found = cells.unit_dimension(spelled)
         if found is None:
-            self.report(where, f"unknown unit {unit!r}; expected a {spec.dimension} unit such as "
-                               f"{'in or mm' if spec.dimension == 'length' else 'lbf or N' if spec.dimension == 'force' else 'psi or MPa'}")
+            self.report(where, f"unknown unit {unit!r}; expected {cells.expected(spec.dimension)}")
             return None
         if found != spec.dimension:
             self.report(where, f"{unit!r} is a unit of {found}; {spec.path} is a {spec.dimension}")
