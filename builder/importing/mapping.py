@@ -5,7 +5,6 @@ dimension, usable defaults), every problem located in the map file (path:line:co
 from __future__ import annotations
 
 import datetime as _dt
-import difflib
 import os
 import re
 from dataclasses import dataclass, field
@@ -14,7 +13,7 @@ from pathlib import Path
 from builder.importing import cells
 from builder.importing.fields import CHOICE, LIST, PART, QUANTITY, SPECIAL, TEXT, FieldSpec, record_fields
 from builder.importing.problems import CellError
-from builder.problems import InputError, Problem
+from builder.problems import InputError, Problem, nearest
 from builder.records._schema import dotted, schema_problems
 from builder.records._yaml import Located, careful_load, read_text
 
@@ -171,7 +170,7 @@ class _Reader:
             return None
         spec = self.specs.get(name)
         if spec is None:
-            close = difflib.get_close_matches(name, list(self.specs), n=3, cutoff=0.6)
+            close = nearest(name, self.specs, cutoff=0.6)
             hint = f"; did you mean {' or '.join(close)}?" if close else \
                 "; fields are dotted record keys such as master.bore or notes"
             self.report(where, f"no record field {name!r}{hint}", at_key=True)
@@ -289,7 +288,7 @@ def bind(imap: ImportMap, headers: list[str], sheet_path: str) -> dict[str, int]
             problems.append(imap.problem(where, f"{len(matches)} columns of {sheet_path} are headed {name!r} "
                                                 f"(columns {places}); rename all but one in the sheet"))
             continue
-        close = difflib.get_close_matches(name, [h for h in headers if h], n=3, cutoff=0.5)
+        close = nearest(name, [h for h in headers if h])
         hint = f"; nearest: {', '.join(repr(c) for c in close)}" if close else \
             f"; its headings are {', '.join(repr(h) for h in headers if h)}"
         problems.append(imap.problem(where, f"no column {name!r} in row {imap.header_row} of {sheet_path}{hint}"))
