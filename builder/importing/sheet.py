@@ -190,12 +190,13 @@ def _sheet(shown: str, rows: list[list], header_row: int, kind: str) -> Sheet:
     sheet = Sheet(shown, headers, header_row, kind=kind)
     for number, cells in enumerate(rows[header_row:], header_row + 1):
         cells = tuple(cells[:width]) + (None,) * (width - len(cells))
-        if any(not _blank(cell) for cell in cells):
+        if any(not blank(cell) for cell in cells):
             sheet.rows.append(Row(number, cells))
     return sheet
 
 
-def _blank(cell: object) -> bool:
+def blank(cell: object) -> bool:
+    """An empty cell: nothing, or text of spaces only."""
     return cell is None or (isinstance(cell, str) and not cell.strip())
 
 

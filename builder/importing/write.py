@@ -24,6 +24,7 @@ from builder.importing.mapping import ImportMap, bind, check_part_defaults, load
 from builder.importing.problems import CellProblem
 from builder.importing.rows import RowReader, RowRecord
 from builder.importing.sheet import Sheet, UnknownSheet, read_sheet
+from builder.importing.sheet import blank as blank_cell
 from builder.problems import InputError, Problem
 from builder.records import load_build_file, load_catalogue, load_rules, parse_build
 from builder.records._schema import schema
@@ -81,7 +82,7 @@ def import_sheet(sheet_path: str | os.PathLike, map_path: str | os.PathLike, rec
     mapped = sorted(used)
     rows = []
     for row in sheet.rows:  # a totals row or a remark in unmapped columns is not a build
-        if all(_blank(row.cells[index]) for index in mapped):
+        if all(blank_cell(row.cells[index]) for index in mapped):
             report.left_out.append(row.number)
         else:
             rows.append(reader.read(row))
@@ -107,10 +108,6 @@ def import_sheet(sheet_path: str | os.PathLike, map_path: str | os.PathLike, rec
             existing[record.id] = target
     report.refused.sort(key=lambda p: (p.row, p.col, p.field))
     return report
-
-
-def _blank(cell: object) -> bool:
-    return cell is None or (isinstance(cell, str) and not cell.strip())
 
 
 def _read(sheet_path, imap: ImportMap) -> Sheet:
