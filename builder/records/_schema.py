@@ -9,13 +9,13 @@ from __future__ import annotations
 import functools
 import json
 
+from builder.fields import QUANTITY_DEFS
 from builder.problems import nearest
 from builder.resources import data_dir
 from builder.units import DIMENSIONS, QuantityError, parse_quantity
 
 SCHEMA_DIR = data_dir("schema")
-_QUANTITY_DEFS = ("length", "signed_length", "area", "force", "signed_force", "pressure", "angle",
-                  "signed_angle", "hose_expansion", "volume_per_length", "fraction")
+_QUANTITY_DEFS = tuple(QUANTITY_DEFS)  # the schemas' quantity $defs, as builder.fields writes them
 _SKIPPED = ("anyOf", "not")  # section completeness and bore-or-area: the records code words these
 _ANNOTATIONS = ("title", "description", "$schema")  # words for editors: nothing to check
 
