@@ -10,6 +10,7 @@ import os
 import re
 from pathlib import Path
 
+from builder.fields import FIELDS
 from builder.model import BUILD_ID_PATTERN
 from builder.problems import PLACEHOLDER, InputError, Problem
 
@@ -26,7 +27,7 @@ technician: XX
 vehicle: describe the car generically
 gearbox:
   family: FAMILY
-  fork_tip_moves: xx              # forward | rearward | none (concentric slave)
+  fork_tip_moves: xx              # {fork_tip_moves} (concentric slave)
 clutch:
   release_load: xx lbf            # peak load at the release bearing
   release_travel: xx in           # bearing travel for full release
@@ -38,18 +39,24 @@ master:                           # or `part: <catalogue id>` instead of bore an
   bore: xx in
   stroke: xx in
 slave:
-  kind: xx                        # external | concentric
+  kind: xx                        # {slave_kind}
   bore: xx in
   stroke: xx in
 line:
   length: xx in
-  hose: xx                        # rubber | braided_ptfe | steel
-  fluid: xx                       # DOT 3 | DOT 4 | DOT 5 | DOT 5.1
+  hose: xx                        # {hose}
+  fluid: xx                       # {fluid}
 pedal:
   pivot_to_pad: xx in
   pivot_to_clevis: xx in
   pad_travel: xx in
 """
+
+
+# the choices each template comment lists, from the field table
+_TEMPLATE_CHOICES = {name: " | ".join(FIELDS[key].choices) for name, key in (
+    ("fork_tip_moves", "gearbox.fork_tip_moves"), ("slave_kind", "slave.kind"), ("hose", "line.hose"),
+    ("fluid", "line.fluid"))}
 
 
 class LeftToFill(InputError):
@@ -177,7 +184,7 @@ def create(records: Path, build_id: str, like_id: str | None,
         raise InputError([Problem(str(existing[build_id]), 0, 0, "id",
                                   f"{build_id} already exists; nothing was written")])
     if like_id is None:
-        body = TEMPLATE.format(id=build_id, date=today.isoformat())
+        body = TEMPLATE.format(id=build_id, date=today.isoformat(), **_TEMPLATE_CHOICES)
     elif like_id in existing:
         body = copy_inputs(existing[like_id].read_text(encoding="utf-8"), build_id, like_id, today)
     else:
