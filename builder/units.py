@@ -126,6 +126,20 @@ def parse_quantity(text: object, dimension: str, *, signed: bool = False) -> flo
     raise QuantityError("not-text", dimension, describe(text))
 
 
+def unit_dimension(unit: str) -> str | None:
+    """The dimension (a key of DIMENSIONS) of a unit string as a record spells it, or None when
+    it is no unit, or a unit of a dimension the records do not use (kg, s).
+
+    >>> unit_dimension("in"), unit_dimension("mL/m"), unit_dimension("kg")
+    ('length', 'volume_per_length', None)
+    """
+    try:
+        found = _resolve_unit(unit, unit, "")[1]
+    except QuantityError:
+        return None
+    return found if found in DIMENSIONS else None
+
+
 def check_range(value: float, low: float, high: float, dimension: str, text: object) -> None:
     """Raise QuantityError (out-of-range, with the bounds) unless low <= value <= high (SI)."""
     if not low <= value <= high:

@@ -11,10 +11,10 @@ Every parser raises CellError with a message for the person fixing the sheet.
 from __future__ import annotations
 
 import datetime as _dt
-import functools
 import math
 import re
 
+from builder import units
 from builder.importing.fields import FieldSpec
 from builder.importing.problems import CellError
 from builder.model import BUILD_ID_PATTERN
@@ -163,18 +163,11 @@ def normalize_unit(unit: str) -> str:
     return UNIT_ALIASES.get(key, unit.strip())
 
 
-@functools.lru_cache(maxsize=512)
 def unit_dimension(unit: str) -> str | None:
-    """The builder.units dimension of a unit spelling, or None when it is no unit we can use."""
-    for dimension in DIMENSIONS:
-        if dimension == "fraction":
-            continue
-        try:
-            parse_quantity(f"1 {unit}", dimension)
-        except QuantityError:
-            continue
-        return dimension
-    return None
+    """The builder.units dimension of a unit spelling, or None when it is no unit a cell can use
+    (a percentage is not: no column holds a fraction)."""
+    found = units.unit_dimension(unit)
+    return None if found == "fraction" else found
 
 
 def _noun(dimension: str | None, article: bool = False) -> str:
