@@ -13,6 +13,7 @@ from pathlib import Path
 from builder.fields import FIELDS
 from builder.model import BUILD_ID_PATTERN
 from builder.problems import PLACEHOLDER, InputError, Problem
+from builder.records.writer import schema_modeline
 
 _TOP_KEY = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)\s*:")
 _DROPPED = {"measured", "outcome", "notes"}
@@ -66,12 +67,6 @@ class LeftToFill(InputError):
     def __init__(self, path: Path, problems: list[Problem]):
         super().__init__(problems)
         self.path = path
-
-
-def _modeline(new_file: Path, records: Path) -> str:
-    schema = Path(os.path.realpath(records)).parent / "schema" / "build.schema.json"
-    relative = os.path.relpath(schema, os.path.realpath(new_file.parent))  # realpath: no error on a loop
-    return f"# yaml-language-server: $schema={Path(relative).as_posix()}\n"
 
 
 def copy_inputs(text: str, new_id: str, like_id: str, today: dt.date) -> str:
@@ -191,7 +186,7 @@ def create(records: Path, build_id: str, like_id: str | None,
         raise InputError([Problem(where, 0, 0, "like",
                                   f"no build {like_id!r} in {builds_dir}")])
     target = builds_dir / str(today.year) / f"{build_id}.yaml"
-    text = _modeline(target, records) + body
+    text = f"# {schema_modeline(target, records)}\n" + body
     _write_new(records, target, text)
     try:
         load_build_file(target, shop)

@@ -355,3 +355,15 @@ def test_a_row_with_nothing_in_the_maps_columns_is_left_out(shop):
     result = run(shop, sheet)
     assert result.exit_code == 0, result.output
     assert "left out (nothing in the map's columns): row 3" in result.output
+
+
+def test_a_year_folder_that_is_a_loop_of_links_is_refused_without_a_traceback(shop):
+    year = shop / "builds" / "2021"
+    loop = shop / "builds" / "loop"
+    year.symlink_to(loop)
+    loop.symlink_to(year)
+    sheet = write_sheet(shop, sheet_text(row()))
+    result = run(shop, sheet)
+    assert result.exit_code == 1, result.output
+    assert [(p[0], p[2]) for p in refused_lines(result, sheet)] == [(2, "id")], result.output
+    assert year.is_symlink() and loop.is_symlink()

@@ -28,7 +28,7 @@ from builder.importing.sheet import blank as blank_cell
 from builder.problems import InputError, Problem
 from builder.records import load_build_file, load_catalogue, load_rules, parse_build
 from builder.records._schema import schema
-from builder.records.writer import dump, ordered
+from builder.records.writer import dump, ordered, schema_modeline
 
 YAML_SUFFIXES = (".yaml", ".yml")
 
@@ -120,9 +120,7 @@ def _read(sheet_path, imap: ImportMap) -> Sheet:
 
 def record_text(data: dict, target: Path, records: Path) -> str:
     """The record's YAML: the schema line for an editor first, keys in the build schema's order."""
-    schema_file = records.resolve().parent / "schema" / "build.schema.json"
-    relative = Path(os.path.relpath(schema_file, target.parent.resolve())).as_posix()
-    return dump(ordered(data, schema("build")), modeline=f"yaml-language-server: $schema={relative}")
+    return dump(ordered(data, schema("build")), modeline=schema_modeline(target, records))
 
 
 def _refuse_shared_ids(rows: list[RowRecord], sheet_path: str) -> None:

@@ -14,8 +14,10 @@ from __future__ import annotations
 import datetime as _dt
 import functools
 import math
+import os
 import re
 from collections.abc import Mapping, Sequence
+from pathlib import Path
 
 import yaml
 
@@ -31,6 +33,15 @@ class UnwritableValue(TypeError):
         super().__init__(f"no YAML form for {type(value).__name__} at {where!r}")
         self.where = where
         self.value = value
+
+
+def schema_modeline(new_file: str | os.PathLike, records_dir: str | os.PathLike, schema: str = "build") -> str:
+    """The editor's schema line (without "# ") for a record file about to be written at
+    `new_file`: the path from its folder to <records_dir>/../schema/<schema>.schema.json.
+    Links are resolved with os.path.realpath, which does not fail on a loop of links."""
+    schema_file = Path(os.path.realpath(records_dir)).parent / "schema" / f"{schema}.schema.json"
+    relative = os.path.relpath(schema_file, os.path.realpath(Path(new_file).parent))
+    return f"yaml-language-server: $schema={Path(relative).as_posix()}"
 
 
 def dump(data: Mapping, modeline: str | None = None, comments: Comments | None = None) -> str:
