@@ -212,6 +212,12 @@ def _write(record: RowRecord, text: str, target: Path, builds_dir: Path, shop: m
 
     try:
         target.parent.mkdir(parents=True, exist_ok=True)
+    except FileExistsError:  # a file, or a link leading nowhere (a loop included), at its name
+        return refused(f"{target.parent} is not a folder (a file, or a link that leads nowhere); "
+                       "nothing written")
+    except OSError as error:
+        return refused(f"cannot make the folder {target.parent}: {error.strerror or error}; nothing written")
+    try:
         if not target.parent.resolve().is_relative_to(builds_dir.resolve()):
             return refused(f"{target.parent} leads outside {builds_dir} (a link?); nothing written")
         data = text.encode("utf-8")
