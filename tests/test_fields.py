@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 from jsonschema import Draft202012Validator
 
-from builder import fields
+from builder import fields, units
 from builder.records import convert
 
 SCHEMA_DIR = Path(__file__).resolve().parents[1] / "schema"
@@ -29,11 +29,14 @@ def test_written_schemas_are_valid_draft_2020_12(name):
 
 
 def test_every_quantity_has_a_dimension_a_range_and_words():
+    checked = set()
     for key, field in fields.FIELDS.items():
         assert field.label and field.description, key
-        if field.kind in (fields.QUANTITY, fields.POINT):
+        if field.kind in fields.MEASURED_KINDS:  # one quantity, a point, or a list of either
             low, high = field.bounds
-            assert field.dimension and low < high, key
+            assert field.dimension in units.DIMENSIONS and low < high, key
+            checked.add(field.kind)
+    assert checked == set(fields.MEASURED_KINDS)
 
 
 def test_the_loader_reads_its_ranges_and_sections_from_the_table():
