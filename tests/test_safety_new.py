@@ -104,3 +104,9 @@ def test_new_still_writes_a_draft_in_a_fresh_year_folder(shop):
     written = shop / "builds" / YEAR / "HW-0199.yaml"
     assert written.is_file() and not written.is_symlink()
     assert "status: draft" in written.read_text()
+    # its first line leads an editor from the file's folder to the schema beside records/
+    first = written.read_text().splitlines()[0]
+    relative = first.removeprefix("# yaml-language-server: $schema=")
+    assert relative != first
+    assert (written.parent / relative).resolve() == (shop.parent / "schema" / "build.schema.json").resolve()
+    assert (written.parent / relative).is_file()
