@@ -136,6 +136,11 @@ def _expansion(hose: str) -> Field:
                                 example="[1000 psi, 0.66 cc/ft]", least_items=1))
 
 
+def _or(choices: tuple[str, ...]) -> str:
+    """("a", "b", "c") -> "a, b or c": a field's choices in its description."""
+    return f"{', '.join(choices[:-1])} or {choices[-1]}"
+
+
 def _text(key, label, description) -> Field:
     return Field(key, TEXT, label, description)
 
@@ -241,9 +246,9 @@ SECTIONS = (
     Section("line", "Line", "The hydraulic line from master to slave.", (
         _q("line.length", "length", "Line length, master to slave.", "length", "50 mm", "10 m",
            required=True),
-        Field("line.hose", CHOICE, "hose", "Hose kind: rubber, braided_ptfe or steel.",
+        Field("line.hose", CHOICE, "hose", f"Hose kind: {_or(model.HOSE_KINDS)}.",
               choices=model.HOSE_KINDS, required=True),
-        Field("line.fluid", CHOICE, "fluid", "Brake fluid: DOT 3, DOT 4, DOT 5 or DOT 5.1.",
+        Field("line.fluid", CHOICE, "fluid", f"Brake fluid: {_or(model.FLUIDS)}.",
               choices=model.FLUIDS, required=True),
         _q("line.hose_length", "hose length", "Optional: the flexible part of the line length; "
            "the rest is hard line (the shop's steel figure). All of it when left out.",
