@@ -80,6 +80,8 @@ def problems_of(tmp_path: Path, text: str) -> list:
     (("  master.bore:", "  master.bores:"), 5, 3, "fields.master.bores", ["no record field", "master.bore"]),
     (('unit: "\\""', "unit: lbf"), 5, 42, "fields.master.bore.unit", ["lbf", "force", "length"]),
     (('unit: "\\""', "unit: furlongs_per_bar"), 5, 42, "fields.master.bore.unit", ["unknown unit"]),
+    (('  master.bore: {column: "MC bore", unit: "\\""}', '  slave.piston_area: {column: "Area", unit: mL/m}'),
+     5, 45, "fields.slave.piston_area.unit", ["'mL/m' is a unit of volume per length; slave.piston_area is an area"]),
     # a number is no part of a unit: `3` in the column would otherwise become "3 1/8 in"
     (('unit: "\\""', 'unit: "1/8 in"'), 5, 42, "fields.master.bore.unit", ["unknown unit '1/8 in'"]),
     (("line.fluid: DOT4", "line.fluid: DOT 7"), 10, 15, "defaults.line.fluid", ["expected one of DOT 3"]),

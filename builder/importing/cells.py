@@ -88,7 +88,7 @@ def quantity(cell: object, spec: FieldSpec, column_unit: str | None, decimal: st
     """The record form of a quantity cell for `spec` ("7/8 in", "35 lbf"); CellError if not usable."""
     if _is_date(cell):
         shown = text(cell)
-        raise CellError(f"the spreadsheet holds a date ({shown}) here, not a {_noun(spec.dimension)}; a "
+        raise CellError(f"the spreadsheet holds a date ({shown}) here, not a {noun(spec.dimension)}; a "
                         "spreadsheet program turns a typed 7/8 into 8 July: format the column as text and "
                         "type the value again")
     if isinstance(cell, bool):
@@ -111,11 +111,11 @@ def quantity(cell: object, spec: FieldSpec, column_unit: str | None, decimal: st
     if found != spec.dimension:
         meaning = "" if typed == record else f" ({record})"
         raise CellError(f"expected {expected(spec.dimension)}; found {typed!r}{meaning}, which is "
-                        f"{_noun(found, article=True)}")
+                        f"{noun(found, article=True)}")
     try:
         value = parse_quantity(record, spec.dimension, signed=True)
     except QuantityError:  # the magnitude and unit each passed: only a value overflowing is left
-        raise CellError(f"{typed!r} is not a finite {_noun(spec.dimension)}") from None
+        raise CellError(f"{typed!r} is not a finite {noun(spec.dimension)}") from None
     if not spec.low <= value <= spec.high:
         raise CellError(f"{typed!r} is outside the plausible range {show(spec.low, spec.dimension)} to "
                         f"{show(spec.high, spec.dimension)} for {spec.path}")
@@ -170,7 +170,7 @@ def unit_dimension(unit: str) -> str | None:
     return None if found == "fraction" else found
 
 
-def _noun(dimension: str | None, article: bool = False) -> str:
+def noun(dimension: str | None, article: bool = False) -> str:
     noun = (dimension or "value").replace("_", " ")
     if not article:
         return noun
@@ -180,7 +180,7 @@ def _noun(dimension: str | None, article: bool = False) -> str:
 def expected(dimension: str) -> str:
     """What a quantity of `dimension` looks like, for a message: "a length, e.g. 7/8, ..."."""
     example = _EXAMPLES.get(dimension) or DIMENSIONS[dimension][1]
-    return f"{_noun(dimension, article=True)}, e.g. {example}"
+    return f"{noun(dimension, article=True)}, e.g. {example}"
 
 
 def _key(value: str) -> str:

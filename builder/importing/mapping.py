@@ -212,7 +212,8 @@ class _Reader:
             self.report(where, f"unknown unit {unit!r}; expected {cells.expected(spec.dimension)}")
             return None
         if found != spec.dimension:
-            self.report(where, f"{unit!r} is a unit of {found}; {spec.path} is a {spec.dimension}")
+            self.report(where, f"{unit!r} is a unit of {cells.noun(found)}; "
+                               f"{spec.path} is {cells.noun(spec.dimension, article=True)}")
             return None
         return spelled
 
