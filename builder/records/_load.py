@@ -14,7 +14,7 @@ from pathlib import Path
 
 from builder import model
 from builder.bulk import collector_paused
-from builder.fields import FIELDS
+from builder.fields import END_FIELDS, FIELDS, SECTIONS, TEXT, TOP_FIELDS
 from builder.presentation import placeholder_message, unknown_family_message
 from builder.problems import PLACEHOLDER, InputError, Problem, nearest
 from builder.records import convert as f
@@ -23,6 +23,9 @@ from builder.records._yaml import NeedsCare, careful_load, fast_load, read_text
 
 YAML_SUFFIXES = (".yaml", ".yml")
 _MEASURED_STATUSES = ("measured", "verified")
+# from the field table: a build's free-text fields, and the sections every build has
+_FREE_TEXT = tuple(field.key for field in TOP_FIELDS + END_FIELDS if field.kind == TEXT)
+_NEEDED_SECTIONS = tuple(section.name for section in SECTIONS if not section.optional)
 Progress = Callable[[int, int], None]
 
 
@@ -284,8 +287,7 @@ def _build_converter(catalogue: dict, stem: str | None, families: frozenset[str]
     `families` the gearbox family codes it may name (None: not checked)."""
 
     def convert(data: dict, report: f.ProblemCollector) -> model.Build | None:
-        free = {key: f.checked_text(data.get(key), key, report, (key,))
-                for key in ("technician", "vehicle", "outcome", "notes")}
+        free = {key: f.checked_text(data.get(key), key, report, (key,)) for key in _FREE_TEXT}
         sections = {name: _section(data, name, catalogue, report) for name in f.SECTION_FIELDS}
         build_id = data.get("id")
         if stem is not None and isinstance(build_id, str) and build_id != stem:
@@ -293,8 +295,7 @@ def _build_converter(catalogue: dict, stem: str | None, families: frozenset[str]
         _check_family(sections["gearbox"], families, report)
         _check_combination(data, sections, report)
         when = f.date(data.get("date"), report, ("date",))
-        needed = [name for name in f.SECTION_FIELDS if name not in ("fork", "measured")]
-        if report.problems or any(sections[name] is None for name in needed):
+        if report.problems or any(sections[name] is None for name in _NEEDED_SECTIONS):
             return None
         return model.Build(id=build_id, date=when, status=data["status"], path=report.path,
                            **free, **sections)
