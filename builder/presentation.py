@@ -522,12 +522,6 @@ def rejected_line(use, primary: str = "imperial") -> str:
 # --- suggestions ----------------------------------------------------------------------------
 
 SIXTEENTH = 0.0254 / 16  # m
-SUGGEST_RULE_WORDS = {
-    "effort-high": "effort above the band", "effort-low": "effort below the band",
-    "travel-short": "margin under the minimum", "travel-over": "margin over the maximum",
-    "release-late": "release too late", "pressure-over-rating": "pressure over a rating",
-    "master-bottoms-early": "master bottoms before the stop",
-}
 
 
 def nominal_bore(value: float, primary: str = "imperial") -> str:
