@@ -173,7 +173,7 @@ def contract(result: CheckResult, primary: str = "imperial") -> dict:
         "similar": [
             {
                 "id": item.id,
-                "distance": round(item.distance, 4),
+                "distance": say.in_unit(item.distance, "1", 4),
                 "differs": [say.difference_words(x, primary) for x in item.differs],
                 "measured_effort_N": say.in_unit(item.measured_effort, "N", 2),
                 "outcome": item.outcome,
