@@ -200,6 +200,17 @@ def test_report_filters_by_family_fork_and_status():
     assert run("report", "--fork", "sideways").exit_code == 2
 
 
+def test_report_family_filter_knows_the_families_rule_of_shop_yaml(shop_copy: Path):
+    # A family the shop lists under `families` but no catalogue gearbox or build uses yet
+    # is a family of the shop: no builds, not a usage error.
+    rules = shop_copy / "shop.yaml"
+    rules.write_text(rules.read_text() + "families: [ZZ-7]\n")
+    listed = run("report", "--family", "ZZ-7", records=shop_copy)
+    assert listed.exit_code == 0, listed.output
+    assert listed.output == "No builds.\n"
+    assert run("report", "--family", "ZZ-8", records=shop_copy).exit_code == 2
+
+
 def test_calibration_lists_every_family_and_shop_wide():
     result = run("calibration")
     assert result.exit_code == 0, result.output
