@@ -75,7 +75,8 @@ def main(argv: list[str] | None = None) -> int:
         print(f"{'shop':<24} {'proposal':<8} {'sizes':<10} {'tried':>5}  {'suggest wall (cpu)':<18} "
               f"{'check wall (cpu)':<17} {'ratio':>5}  target  verdict")
         for shop, records in shops.items():
-            label = "demo (58 builds)" if shop == "demo" else f"synthetic ({SHOP_SIZE} builds)"
+            count = len(list((records / "builds").rglob("*.yaml")))
+            label = f"{shop} ({count} builds)"
             for name, proposal in paths.items():
                 check_wall, check_cpu, status = timed(["--records", str(records), "check",
                                                        str(proposal)])
