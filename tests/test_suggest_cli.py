@@ -321,6 +321,16 @@ def test_a_rejected_combination_is_a_warning_in_check(small):
     assert data["rejected_before"] == [{"id": "ZZ-0102", "outcome": "dragged when hot", "flags": []}]
 
 
+def test_a_rejected_build_is_not_its_own_warning(small):
+    # "rejected before" means another build: ZZ-0102 is the only rejected MC-120 with SC-210,
+    # so checking ZZ-0102 itself finds no other and no flag fires.
+    records, _ = small
+    result = run(records, "check", "ZZ-0102")
+    assert result.exit_code == 0, result.output
+    assert result.output.startswith("Ready to order.\n")
+    assert json.loads(run(records, "check", "ZZ-0102", "--json").output)["rejected_before"] == []
+
+
 def test_check_finds_a_recorded_build_by_its_id():
     by_id = run(DEMO, "check", "HW-0142", "--json")
     by_path = run(DEMO, "check", str(next(DEMO.rglob("HW-0142.yaml"))), "--json")
