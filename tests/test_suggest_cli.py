@@ -331,6 +331,19 @@ def test_a_rejected_build_is_not_its_own_warning(small):
     assert json.loads(run(records, "check", "ZZ-0102", "--json").output)["rejected_before"] == []
 
 
+def test_a_file_named_like_a_recorded_build_is_sized_from_its_own_text(small, tmp_path):
+    # A copy of ZZ-0101 outside the records, changed to MC-120: the file is what is checked,
+    # so the rejected ZZ-0102 (MC-120 with SC-210) shows, unlike for the recorded ZZ-0101.
+    records, _ = small
+    copy = tmp_path / "ZZ-0101.yaml"
+    copy.write_text((records / "builds" / "ZZ-0101.yaml").read_text().replace("MC-110", "MC-120"),
+                    encoding="utf-8")
+    result = run(records, "check", str(copy))
+    assert result.exit_code == 0, result.output
+    assert result.output.startswith("Ready to order, with warnings: rejected-combination.\n")
+    assert "  ZZ-0102 (rejected): dragged when hot" in result.output
+
+
 def test_check_finds_a_recorded_build_by_its_id():
     by_id = run(DEMO, "check", "HW-0142", "--json")
     by_path = run(DEMO, "check", str(next(DEMO.rglob("HW-0142.yaml"))), "--json")
