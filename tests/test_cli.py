@@ -4,7 +4,6 @@ from __future__ import annotations
 import csv
 import io
 import json
-import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -14,7 +13,7 @@ import yaml
 from click.testing import CliRunner
 
 from builder.cli import main
-from clitools import tree_digest
+from clitools import copy_demo_shop, tree_digest
 
 ROOT = Path(__file__).resolve().parents[1]
 RECORDS = ROOT / "records"
@@ -39,9 +38,7 @@ def run(*args: str, records: Path = RECORDS):
 @pytest.fixture
 def shop_copy(tmp_path: Path) -> Path:
     """A private copy of the demo shop (records/ plus schema/ beside it, as in a clone)."""
-    shutil.copytree(RECORDS, tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
-    return tmp_path / "records"
+    return copy_demo_shop(tmp_path)
 
 
 def test_validate_demo_is_clean():
