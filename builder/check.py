@@ -371,7 +371,7 @@ def describe(result: CheckResult, primary: str) -> str:
         lines.append("")
         lines.append(f"Warning: rejected builds of {b.gearbox.family}, fork tip "
                      f"{b.gearbox.fork_tip_moves}, used this master and slave:")
-        lines.extend(f"  {say.rejected_line(use, primary)}" for use in result.rejected)
+        lines.extend(f"  {say.rejected_line(use)}" for use in result.rejected)
     if result.suggestions is not None:
         found = result.suggestions
         lines.append("")

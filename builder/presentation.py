@@ -513,7 +513,7 @@ def verdict_line(verdict: str, codes: Iterable[str]) -> str:
     return f"{VERDICT_WORDS[verdict]}: {listed}." if listed else f"{VERDICT_WORDS[verdict]}."
 
 
-def rejected_line(use, primary: str = "imperial") -> str:
+def rejected_line(use) -> str:
     """"HW-0132 (rejected; its flags release-late, travel-short): slipped when hot"."""
     flags = f"; its flags {', '.join(use.flags)}" if use.flags else ""
     return f"{use.id} (rejected{flags}): {use.outcome or 'no outcome noted'}"
@@ -658,7 +658,7 @@ def suggestion_lines(row, rank: int | None, primary: str = "imperial",
     if row.misses:
         lines.append(f"{pad}misses: " + "; ".join(miss_words(m, primary) for m in row.misses))
     for use in row.rejected:
-        lines.append(f"{pad}warning, rejected before: {rejected_line(use, primary)}")
+        lines.append(f"{pad}warning, rejected before: {rejected_line(use)}")
     return lines
 
 
