@@ -203,3 +203,17 @@ def test_miss_words_put_the_candidates_value_before_the_shops_limit():
     rated = Miss("pressure-over-rating", 1200 * psi, 1000 * psi, "pressure", 0.2, "slave")
     assert say.miss_words(rated) == ("pressure-over-rating: worst-case pressure 1200 psi "
                                      "(8274 kPa) is over the slave's 1000 psi (6895 kPa)")
+
+
+def test_change_words_for_a_same_size_part_and_a_slave_given_by_area():
+    # 7/8 in = 22.225 mm; 1.2 in^2 = 774.2 mm^2; 0.5 in^2 = 322.6 mm^2 (NIST SP 811 B.8:
+    # 1 in = 25.4 mm exactly), worked by hand.
+    from builder.history.suggest import Change
+
+    inch = 0.0254
+    same = Change("master", "MC-A2", True, 0.875 * inch, "length", "MC-A1", 0.875 * inch,
+                  stroke=1.2 * inch, was_stroke=1.2 * inch)
+    assert say.change_words(same) == "master MC-A2: same 0.875 in (22.2 mm) bore and stroke"
+    area = Change("slave", "SC-C3", True, 1.2 * inch**2, "area", None, 0.5 * inch**2)
+    assert say.change_words(area) == ("slave SC-C3: 1.2 in^2 (774.2 mm^2) piston area instead "
+                                      "of 0.5 in^2 (322.6 mm^2)")
