@@ -116,6 +116,8 @@ def contract(result: CheckResult, primary: str = "imperial") -> dict:
 
     Numbers are SI-derived (N, mm, kPa, mL, %); messages are worded in the shop's units.
     """
+    from builder.history.deltas import relative_delta
+
     s, b, p, d = result.sizing, result.build, result.prediction, result.deltas
     measured = b.measured
     effort = predicted_effort(result)
@@ -137,8 +139,7 @@ def contract(result: CheckResult, primary: str = "imperial") -> dict:
             "interval_N": None if p.interval is None else [say.in_unit(v, "N", 2) for v in p.interval],
             "measured_N": say.in_unit(measured_effort, "N", 2),
             "delta_pct": say.in_unit(d.effort, "%", 2),
-            "predicted_delta_pct": say.in_unit(
-                None if measured_effort is None else measured_effort / effort - 1.0, "%", 2),
+            "predicted_delta_pct": say.in_unit(relative_delta(measured_effort, effort), "%", 2),
             "basis": say.basis_sentence(p.basis) or None,
             "builds_behind": p.n_builds,
             "note": say.prediction_note(p),
@@ -172,7 +173,7 @@ def contract(result: CheckResult, primary: str = "imperial") -> dict:
         "similar": [
             {
                 "id": item.id,
-                "distance": round(item.distance, 4),
+                "distance": say.in_unit(item.distance, "1", 4),
                 "differs": [say.difference_words(x, primary) for x in item.differs],
                 "measured_effort_N": say.in_unit(item.measured_effort, "N", 2),
                 "outcome": item.outcome,
@@ -370,7 +371,7 @@ def describe(result: CheckResult, primary: str) -> str:
         lines.append("")
         lines.append(f"Warning: rejected builds of {b.gearbox.family}, fork tip "
                      f"{b.gearbox.fork_tip_moves}, used this master and slave:")
-        lines.extend(f"  {say.rejected_line(use, primary)}" for use in result.rejected)
+        lines.extend(f"  {say.rejected_line(use)}" for use in result.rejected)
     if result.suggestions is not None:
         found = result.suggestions
         lines.append("")

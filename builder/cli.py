@@ -226,11 +226,11 @@ def report(ctx: Context, fmt: str, family: str | None, fork: str | None, status:
 
 
 def _known_family(analysis, family: str) -> None:
-    """A usage error (exit 2) for a --family the shop has never heard of, naming the nearest."""
+    """A usage error (exit 2) for a --family the shop has never heard of, naming the nearest.
+    The shop's builds were loaded against the same families, so they name none outside it."""
+    from builder.records._load import known_families
 
-    shop = analysis.shop
-    known = ({b.gearbox.family for b in shop.builds} | set(shop.rules.families)
-             | {p.section.family for p in shop.parts.get("gearboxes", {}).values()})
+    known = known_families(analysis.shop.parts, analysis.shop.rules)
     if family not in known:
         close = nearest(family.upper(), sorted(known))
         hint = f"nearest: {', '.join(close)}" if close else f"known: {', '.join(sorted(known))}"

@@ -102,14 +102,14 @@ def quantity(value_si: float | None, dimension: str, primary: str = "imperial") 
 
 def percent(fraction: float | None, signed: bool = False) -> str:
     """A fraction as a percentage with one decimal: 0.082 -> "8.2 %", signed "+8.2 %"."""
-    if fraction is None or not math.isfinite(fraction):
-        return NONE
-    return f"{fraction * 100:+.1f} %" if signed else f"{fraction * 100:.1f} %"
+    figure = number_in(fraction, "fraction", "metric", signed)
+    return figure if figure == NONE else f"{figure} %"
 
 
 def ratio(value: float | None) -> str:
     """A plain ratio with two decimals: 5.6 -> "5.60 : 1"."""
-    return NONE if value is None or not math.isfinite(value) else f"{value:.2f} : 1"
+    figure = number_in(value, "ratio", "metric")
+    return figure if figure == NONE else f"{figure} : 1"
 
 
 def factor(value: float | None) -> str:
@@ -513,7 +513,7 @@ def verdict_line(verdict: str, codes: Iterable[str]) -> str:
     return f"{VERDICT_WORDS[verdict]}: {listed}." if listed else f"{VERDICT_WORDS[verdict]}."
 
 
-def rejected_line(use, primary: str = "imperial") -> str:
+def rejected_line(use) -> str:
     """"HW-0132 (rejected; its flags release-late, travel-short): slipped when hot"."""
     flags = f"; its flags {', '.join(use.flags)}" if use.flags else ""
     return f"{use.id} (rejected{flags}): {use.outcome or 'no outcome noted'}"
@@ -522,12 +522,6 @@ def rejected_line(use, primary: str = "imperial") -> str:
 # --- suggestions ----------------------------------------------------------------------------
 
 SIXTEENTH = 0.0254 / 16  # m
-SUGGEST_RULE_WORDS = {
-    "effort-high": "effort above the band", "effort-low": "effort below the band",
-    "travel-short": "margin under the minimum", "travel-over": "margin over the maximum",
-    "release-late": "release too late", "pressure-over-rating": "pressure over a rating",
-    "master-bottoms-early": "master bottoms before the stop",
-}
 
 
 def nominal_bore(value: float, primary: str = "imperial") -> str:
@@ -555,8 +549,7 @@ def nominal_bore(value: float, primary: str = "imperial") -> str:
 def quantity_range(low: float, high: float, dimension: str, primary: str = "imperial") -> str:
     """"27.3 to 28.6 lbf (121.4 to 127.3 N)"."""
     def one(system: str) -> str:
-        first = quantity_in(low, dimension, system).split(" ", 1)[0]
-        return f"{first} to {quantity_in(high, dimension, system)}"
+        return f"{number_in(low, dimension, system)} to {quantity_in(high, dimension, system)}"
     return f"{one(primary)} ({one(other_system(primary))})"
 
 
@@ -665,7 +658,7 @@ def suggestion_lines(row, rank: int | None, primary: str = "imperial",
     if row.misses:
         lines.append(f"{pad}misses: " + "; ".join(miss_words(m, primary) for m in row.misses))
     for use in row.rejected:
-        lines.append(f"{pad}warning, rejected before: {rejected_line(use, primary)}")
+        lines.append(f"{pad}warning, rejected before: {rejected_line(use)}")
     return lines
 
 
@@ -676,7 +669,8 @@ def sensitivity_line(sensitivities, primary: str = "imperial") -> str:
         return ""
     step = sensitivities[0].step
     parts = [f"{s.what} effort {_signed_quantity(s.effort_change, 'force', primary)}, margin "
-             f"{s.margin_change * 100:+.1f} points" for s in sensitivities]
+             f"{number_in(s.margin_change, 'fraction', primary, signed=True)} points"
+             for s in sensitivities]
     return f"One {nominal_bore(step, primary)} step up in bore, as proposed: {'; '.join(parts)}."
 
 

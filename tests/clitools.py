@@ -2,11 +2,22 @@
 from __future__ import annotations
 
 import hashlib
+import shutil
 from pathlib import Path
 
 from click.testing import CliRunner, Result
 
 from builder.cli import main
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def copy_demo_shop(folder: Path) -> Path:
+    """A private copy of the demo shop under `folder`: records/ with schema/ beside it, as in
+    a clone; the copied records folder."""
+    shutil.copytree(ROOT / "records", folder / "records")
+    shutil.copytree(ROOT / "schema", folder / "schema")
+    return folder / "records"
 
 
 def invoke(records: Path, *args: str) -> Result:

@@ -4,7 +4,6 @@ from __future__ import annotations
 import csv
 import io
 import json
-import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -14,7 +13,7 @@ import yaml
 from click.testing import CliRunner
 
 from builder.cli import main
-from clitools import tree_digest
+from clitools import copy_demo_shop, tree_digest
 
 ROOT = Path(__file__).resolve().parents[1]
 RECORDS = ROOT / "records"
@@ -39,9 +38,7 @@ def run(*args: str, records: Path = RECORDS):
 @pytest.fixture
 def shop_copy(tmp_path: Path) -> Path:
     """A private copy of the demo shop (records/ plus schema/ beside it, as in a clone)."""
-    shutil.copytree(RECORDS, tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
-    return tmp_path / "records"
+    return copy_demo_shop(tmp_path)
 
 
 def test_validate_demo_is_clean():
@@ -198,6 +195,17 @@ def test_report_filters_by_family_fork_and_status():
     unknown = run("report", "--family", "QX5")
     assert unknown.exit_code == 2 and "nearest: QX-5" in unknown.output
     assert run("report", "--fork", "sideways").exit_code == 2
+
+
+def test_report_family_filter_knows_the_families_rule_of_shop_yaml(shop_copy: Path):
+    # A family the shop lists under `families` but no catalogue gearbox or build uses yet
+    # is a family of the shop: no builds, not a usage error.
+    rules = shop_copy / "shop.yaml"
+    rules.write_text(rules.read_text() + "families: [ZZ-7]\n")
+    listed = run("report", "--family", "ZZ-7", records=shop_copy)
+    assert listed.exit_code == 0, listed.output
+    assert listed.output == "No builds.\n"
+    assert run("report", "--family", "ZZ-8", records=shop_copy).exit_code == 2
 
 
 def test_calibration_lists_every_family_and_shop_wide():

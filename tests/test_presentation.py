@@ -183,3 +183,37 @@ def test_coverage_sentence_counts_what_held():
     none = GroupCalibration("shop-wide", 4, 0.85, 0.85, 0.05, 1.0, 1.0, 1.0, 0.01, 4, 0.02,
                             0.04, (), interval_percent=80, interval_least=9)
     assert "needs 9 other builds" in say.coverage_sentence(none)
+
+
+def test_miss_words_put_the_candidates_value_before_the_shops_limit():
+    # Figures by hand: 45 lbf = 200.2 N and 12 lbf = 53.4 N, 1200 psi = 8274 kPa and
+    # 1000 psi = 6895 kPa (NIST SP 811 B.8: 1 lbf = 4.4482216152605 N, 1 psi = 6894.757 Pa).
+    from builder.history.suggest import Miss
+
+    lbf, psi = 4.4482216152605, 6894.757293168
+    heavy = Miss("effort-high", 45 * lbf, 40 * lbf, "force", 0.125)
+    assert say.miss_words(heavy) == "effort-high: effort 45 lbf (200.2 N) is above 40 lbf (177.9 N)"
+    light = Miss("effort-low", 12 * lbf, 15 * lbf, "force", 0.25)
+    assert say.miss_words(light) == "effort-low: effort 12 lbf (53.4 N) is below 15 lbf (66.7 N)"
+    over = Miss("travel-over", 0.62, 0.50, "fraction", 0.12)
+    assert say.miss_words(over) == "travel-over: margin +62.0 % is over the shop's 50.0 %"
+    late = Miss("release-late", 0.91, 0.85, "fraction", 0.06)
+    assert say.miss_words(late) == ("release-late: release at 91.0 % of pad travel, later than "
+                                    "85.0 %")
+    rated = Miss("pressure-over-rating", 1200 * psi, 1000 * psi, "pressure", 0.2, "slave")
+    assert say.miss_words(rated) == ("pressure-over-rating: worst-case pressure 1200 psi "
+                                     "(8274 kPa) is over the slave's 1000 psi (6895 kPa)")
+
+
+def test_change_words_for_a_same_size_part_and_a_slave_given_by_area():
+    # 7/8 in = 22.225 mm; 1.2 in^2 = 774.2 mm^2; 0.5 in^2 = 322.6 mm^2 (NIST SP 811 B.8:
+    # 1 in = 25.4 mm exactly), worked by hand.
+    from builder.history.suggest import Change
+
+    inch = 0.0254
+    same = Change("master", "MC-A2", True, 0.875 * inch, "length", "MC-A1", 0.875 * inch,
+                  stroke=1.2 * inch, was_stroke=1.2 * inch)
+    assert say.change_words(same) == "master MC-A2: same 0.875 in (22.2 mm) bore and stroke"
+    area = Change("slave", "SC-C3", True, 1.2 * inch**2, "area", None, 0.5 * inch**2)
+    assert say.change_words(area) == ("slave SC-C3: 1.2 in^2 (774.2 mm^2) piston area instead "
+                                      "of 0.5 in^2 (322.6 mm^2)")

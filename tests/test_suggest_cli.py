@@ -228,23 +228,25 @@ def test_suggest_text_on_a_small_fixed_shop_is_exact(small):
     assert result.output == SUGGEST_TOP_3
 
 
-def test_the_exact_figures_follow_from_the_textbook_relations():
-    """The proposal and the recommended row of SUGGEST_TOP_3, derived by hand in inches."""
+def figures(master: float, slave: float) -> tuple[float, float, float, float]:
+    """(effort lbf, margin, release point, worst-case pressure psi) of the small shop's
+    proposal with a `master` and `slave` bore (in), by hand in inches."""
     pedal, fork, needed, load, efficiency = 11 / 2, 5.6 / 2.8, 0.30 + 0.05, 400.0, 0.85
     line_volume = 36 * math.pi / 4 * (3.2 / 25.4) ** 2  # in^3, the shop's default 3.2 mm bore
     bulk_psi = 10e9 / 6894.757293168  # 10 GPa
+    area_m, area_s = math.pi / 4 * master**2, math.pi / 4 * slave**2
+    effort = load / (pedal * (area_s / area_m) * fork) / efficiency
+    pressure = load / fork / area_s  # psi
+    fluid = line_volume + area_m * 1.40 + area_s * 1.25
+    lost = fluid * pressure / bulk_psi  # in^3, compression of the fluid
+    stroke = 7 / pedal  # the master does not bottom (1.27 in of 1.40 in)
+    margin = (area_m * stroke - lost) / area_s / fork / needed - 1
+    release = (needed * fork * area_s + lost) / area_m * pedal / 7
+    return effort, margin, release, pressure / efficiency
 
-    def figures(master: float, slave: float):
-        area_m, area_s = math.pi / 4 * master**2, math.pi / 4 * slave**2
-        effort = load / (pedal * (area_s / area_m) * fork) / efficiency
-        pressure = load / fork / area_s  # psi
-        fluid = line_volume + area_m * 1.40 + area_s * 1.25
-        lost = fluid * pressure / bulk_psi  # in^3, compression of the fluid
-        stroke = 7 / pedal  # the master does not bottom (1.27 in of 1.40 in)
-        margin = (area_m * stroke - lost) / area_s / fork / needed - 1
-        release = (needed * fork * area_s + lost) / area_m * pedal / 7
-        return effort, margin, release, pressure / efficiency
 
+def test_the_exact_figures_follow_from_the_textbook_relations():
+    """The proposal and the recommended row of SUGGEST_TOP_3, derived by hand in inches."""
     effort, margin, _, worst = figures(0.625, 0.875)
     assert f"effort {effort:.1f} lbf" in SUGGEST_TOP_3 and f"margin {100 * margin:+.1f} %" in SUGGEST_TOP_3
     assert f"worst-case pressure {worst:.0f} psi" in SUGGEST_TOP_3
@@ -275,6 +277,15 @@ def test_suggest_json_rows_have_every_key_and_nulls(small):
     assert data["proposal"]["release_point_pct"] is None
     assert data["proposal"]["rank"] is None
     assert [item["what"] for item in data["sensitivity"]] == ["master", "slave"]
+    # Percentages in the JSON, by hand: headroom to SC-210's 1000 psi rating is
+    # 1000 / worst - 1; one 1/16 in step up in master bore moves the margin by the difference
+    # of the two hand-worked margins, in percentage points.
+    *_, worst = figures(1.0, 1.125)
+    assert rows[0]["pressure_headroom_pct"] == pytest.approx(100 * (1000 / worst - 1), abs=0.01)
+    _, stepped, _, _ = figures(0.625 + 1 / 16, 0.875)
+    _, proposed, _, _ = figures(0.625, 0.875)
+    assert data["sensitivity"][0]["margin_change_pct"] == pytest.approx(
+        100 * (stepped - proposed), abs=0.01)
 
 
 def test_check_on_a_failing_proposal_exits_3_with_a_verdict_and_three_suggestions(small):
@@ -319,6 +330,29 @@ def test_a_rejected_combination_is_a_warning_in_check(small):
     data = json.loads(run(records, "check", str(proposal), "--json").output)
     assert data["verdict"] == "warnings" and data["suggestions"] == []
     assert data["rejected_before"] == [{"id": "ZZ-0102", "outcome": "dragged when hot", "flags": []}]
+
+
+def test_a_rejected_build_is_not_its_own_warning(small):
+    # "rejected before" means another build: ZZ-0102 is the only rejected MC-120 with SC-210,
+    # so checking ZZ-0102 itself finds no other and no flag fires.
+    records, _ = small
+    result = run(records, "check", "ZZ-0102")
+    assert result.exit_code == 0, result.output
+    assert result.output.startswith("Ready to order.\n")
+    assert json.loads(run(records, "check", "ZZ-0102", "--json").output)["rejected_before"] == []
+
+
+def test_a_file_named_like_a_recorded_build_is_sized_from_its_own_text(small, tmp_path):
+    # A copy of ZZ-0101 outside the records, changed to MC-120: the file is what is checked,
+    # so the rejected ZZ-0102 (MC-120 with SC-210) shows, unlike for the recorded ZZ-0101.
+    records, _ = small
+    copy = tmp_path / "ZZ-0101.yaml"
+    copy.write_text((records / "builds" / "ZZ-0101.yaml").read_text().replace("MC-110", "MC-120"),
+                    encoding="utf-8")
+    result = run(records, "check", str(copy))
+    assert result.exit_code == 0, result.output
+    assert result.output.startswith("Ready to order, with warnings: rejected-combination.\n")
+    assert "  ZZ-0102 (rejected): dragged when hot" in result.output
 
 
 def test_check_finds_a_recorded_build_by_its_id():

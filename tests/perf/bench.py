@@ -30,7 +30,6 @@ import subprocess
 import sys
 import tempfile
 import time
-from concurrent.futures import ProcessPoolExecutor
 from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
@@ -38,6 +37,7 @@ REPO = HERE.parents[1]
 sys.path.insert(0, str(HERE))
 
 import synthetic_shop  # noqa: E402  (beside this file)
+from timing import fitment_runs, generate  # noqa: E402  (beside this file)
 
 PYTHON = sys.executable
 FITMENT = str(Path(PYTHON).with_name("fitment"))
@@ -183,28 +183,6 @@ def in_child(kind: str, *args: str) -> dict:
 
 # ----------------------------------------------------------------------------- shops
 
-def _texts(seed: int, numbers: range) -> list[tuple[str, str]]:
-    return [synthetic_shop.record_text(seed, n) for n in numbers]
-
-
-def generate(work: Path, sizes: set[int], seed: int) -> dict[int, Path]:
-    """Write one shop per size under work (reused when already there); path per size."""
-    shops = {n: work / f"shop-{n}" / "records" for n in sorted(sizes)}
-    missing = [n for n, path in shops.items() if not (path / ".complete").exists()]
-    if missing:
-        largest = max(missing)
-        chunks = [range(start, min(start + 500, largest + 1)) for start in range(1, largest + 1, 500)]
-        t0 = time.perf_counter()
-        with ProcessPoolExecutor(max_workers=2) as pool:
-            texts = [t for part in pool.map(_texts, [seed] * len(chunks), chunks) for t in part]
-        for n in missing:
-            shutil.rmtree(shops[n], ignore_errors=True)
-            synthetic_shop.write_shop(shops[n], n, seed, texts)
-            (shops[n] / ".complete").write_text(f"seed {seed}\n")
-        print(f"generated shops of {', '.join(map(str, missing))} builds in {time.perf_counter() - t0:.0f} s")
-    return shops
-
-
 def shop_mix(records: Path) -> str:
     """Shares of the record features in a synthetic shop, for the reader of the figures."""
     paths = list((records / "builds").rglob("*.yaml"))
@@ -275,18 +253,7 @@ def bench_validate_process(records: Path, n: int) -> None:
 
 
 def bench_check(records: Path, label: str, proposal: Path) -> None:
-    walls, cpus = [], []
-    for _ in range(CHECK_RUNS):
-        before = os.times()
-        t0 = time.perf_counter()
-        done = subprocess.run([FITMENT, "--records", str(records), "check", str(proposal)],
-                              capture_output=True, text=True)
-        walls.append(time.perf_counter() - t0)
-        after = os.times()
-        cpus.append(after.children_user - before.children_user
-                    + after.children_system - before.children_system)
-        if done.returncode not in (0, 3):  # 3: sized, not ready to order
-            raise SystemExit(f"fitment check failed on {label}:\n{done.stderr}")
+    walls, cpus, _ = fitment_runs(["--records", str(records), "check", str(proposal)], CHECK_RUNS)
     wall = statistics.median(walls)
     line(f"fitment check, {label} (median)", f"{wall:.2f} s", f"<= {TARGET_CHECK_S:g} s",
          wall <= TARGET_CHECK_S, f"best {min(walls):.2f} s, cpu {statistics.median(cpus):.2f} s, "

@@ -33,30 +33,17 @@ sys.path.insert(0, str(HERE.parent))
 
 import synthetic_shop  # noqa: E402  (beside this file)
 from demo_proposals import DEMO_PROPOSALS as PROPOSALS  # noqa: E402  (shared with the tests)
+from timing import FITMENT, fitment_runs, generate  # noqa: E402  (beside this file)
 
-PYTHON = sys.executable
-FITMENT = str(Path(PYTHON).with_name("fitment"))
 DEMO_RECORDS = REPO / "records"
 RUNS = 5
 SHOP_SIZE = 1_000
 TARGETS = {"demo": 1.0, "synthetic": 2.0}
 
 
-
 def timed(args: list[str]) -> tuple[float, float, int]:
     """(median wall s, median cpu s, exit status) of RUNS runs of `fitment ARGS`."""
-    walls, cpus, status = [], [], 0
-    for _ in range(RUNS):
-        before = os.times()
-        t0 = time.perf_counter()
-        done = subprocess.run([FITMENT, *args], capture_output=True, text=True)
-        walls.append(time.perf_counter() - t0)
-        after = os.times()
-        cpus.append(after.children_user - before.children_user
-                    + after.children_system - before.children_system)
-        status = done.returncode
-        if done.returncode not in (0, 3):
-            raise SystemExit(f"fitment {' '.join(args)} failed:\n{done.stderr}")
+    walls, cpus, status = fitment_runs(args, RUNS)
     return statistics.median(walls), statistics.median(cpus), status
 
 
@@ -77,13 +64,7 @@ def main(argv: list[str] | None = None) -> int:
     work.mkdir(parents=True, exist_ok=True)
     started = time.perf_counter()
     try:
-        synthetic = work / f"shop-{SHOP_SIZE}" / "records"
-        if not (synthetic / ".complete").exists():
-            shutil.rmtree(synthetic, ignore_errors=True)
-            t0 = time.perf_counter()
-            synthetic_shop.write_shop(synthetic, SHOP_SIZE, args.seed)
-            (synthetic / ".complete").write_text(f"seed {args.seed}\n")
-            print(f"generated a {SHOP_SIZE}-build shop in {time.perf_counter() - t0:.0f} s")
+        synthetic = generate(work, {SHOP_SIZE}, args.seed)[SHOP_SIZE]
         shops = {"demo": DEMO_RECORDS, "synthetic": synthetic}
         paths = {}
         for name, text in PROPOSALS.items():
@@ -94,7 +75,8 @@ def main(argv: list[str] | None = None) -> int:
         print(f"{'shop':<24} {'proposal':<8} {'sizes':<10} {'tried':>5}  {'suggest wall (cpu)':<18} "
               f"{'check wall (cpu)':<17} {'ratio':>5}  target  verdict")
         for shop, records in shops.items():
-            label = "demo (58 builds)" if shop == "demo" else f"synthetic ({SHOP_SIZE} builds)"
+            count = len(list((records / "builds").rglob("*.yaml")))
+            label = f"{shop} ({count} builds)"
             for name, proposal in paths.items():
                 check_wall, check_cpu, status = timed(["--records", str(records), "check",
                                                        str(proposal)])
