@@ -332,3 +332,18 @@ def test_a_file_written_into_the_old_site_during_the_swap_is_kept_not_deleted(tm
     kept = Path(caught.value.problems[0].path)
     assert (kept / "late.txt").read_text() == "precious"
     assert (out / "index.html").is_file() and not (out / "late.txt").exists()
+
+
+def test_an_old_site_changed_then_left_by_a_killed_build_is_kept_not_deleted(shop):
+    # A build killed right after the swap leaves the old site in its staging folder, where
+    # the next build finds it. A file that reached it is kept, as after a live swap.
+    out = shop.parent / "published"
+    assert invoke(shop, "site", "build", "--out", str(out)).exit_code == 0
+    killed_build(shop, out, "after-swap")
+    [stage] = [p for p in out.parent.iterdir() if p.name.startswith(f".{out.name}.")]
+    (stage / "site" / "late.txt").write_text("precious")
+    assert invoke(shop, "site", "build", "--out", str(out)).exit_code == 0
+    assert_complete_site(out, shop)
+    kept = [p / "late.txt" for p in out.parent.iterdir() if p.name.startswith(f"{out.name}.kept-")]
+    assert [p.read_text() for p in kept] == ["precious"]
+    assert leftovers(shop, out) == []
