@@ -111,3 +111,21 @@ def test_prediction_interval_is_low_then_high_around_the_prediction():
         assert low < effort < high, build_id
         checked += 1
     assert checked
+
+
+def test_calibration_chart_whiskers_are_the_median_plus_and_minus_its_mad():
+    # The chart's legend: "median, with ± MAD": each whisker reaches as far left of its dot
+    # as right of it (SVG 1.1 path syntax: M x y H x).
+    _, page = pages(24)
+    spread = 0.0
+    for name in ("efficiency", "travel"):
+        chart = page[f"charts/calibration-{name}.svg"]
+        whiskers = re.findall(r'<path d="M' + NUMBER + " " + NUMBER + "H" + NUMBER + "M", chart)
+        dots = re.findall(r'<circle cx="' + NUMBER + '" cy="' + NUMBER + '" r="5"', chart)
+        assert whiskers and len(whiskers) == len(dots), name
+        for (x0, y0, x1), (cx, cy) in zip(whiskers, dots):
+            assert y0 == cy
+            assert float(x0) <= float(cx) <= float(x1), name
+            assert float(cx) - float(x0) == pytest.approx(float(x1) - float(cx), abs=0.15), name
+            spread = max(spread, float(x1) - float(x0))
+    assert spread > 10  # some family's efforts spread (site_shops varies them by build)
