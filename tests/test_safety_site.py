@@ -332,3 +332,38 @@ def test_a_file_written_into_the_old_site_during_the_swap_is_kept_not_deleted(tm
     kept = Path(caught.value.problems[0].path)
     assert (kept / "late.txt").read_text() == "precious"
     assert (out / "index.html").is_file() and not (out / "late.txt").exists()
+
+
+def test_an_old_site_changed_then_left_by_a_killed_build_is_kept_not_deleted(shop):
+    # A build killed right after the swap leaves the old site in its staging folder, where
+    # the next build finds it. A file that reached it is kept, as after a live swap.
+    out = shop.parent / "published"
+    assert invoke(shop, "site", "build", "--out", str(out)).exit_code == 0
+    killed_build(shop, out, "after-swap")
+    [stage] = [p for p in out.parent.iterdir() if p.name.startswith(f".{out.name}.")]
+    (stage / "site" / "late.txt").write_text("precious")
+    assert invoke(shop, "site", "build", "--out", str(out)).exit_code == 0
+    assert_complete_site(out, shop)
+    kept = [p / "late.txt" for p in out.parent.iterdir() if p.name.startswith(f"{out.name}.kept-")]
+    assert [p.read_text() for p in kept] == ["precious"]
+    assert leftovers(shop, out) == []
+
+
+def test_a_file_written_into_the_site_during_the_build_stops_the_swap(tmp_path, monkeypatch):
+    # The site is checked again, under the lock, just before the swap: a file that reached
+    # it while mkdocs ran leaves the old site in place, untouched, and nothing is set aside.
+    result = analysis(2, root=str(tmp_path / "records"))
+    out = tmp_path / "site"
+    publish_site(result, out)
+    before = tree(out)
+    real_mkdocs = site_publish.run_mkdocs
+
+    def mkdocs_then_write(*args, **kwargs):
+        real_mkdocs(*args, **kwargs)
+        (out / "notes.txt").write_text("precious")
+
+    monkeypatch.setattr(site_publish, "run_mkdocs", mkdocs_then_write)
+    with pytest.raises(PublishError, match=r"did not write or that were changed \(notes.txt\)"):
+        publish_site(result, out)
+    assert tree(out) == before | {"notes.txt": hashlib.sha256(b"precious").hexdigest()}
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["site"]

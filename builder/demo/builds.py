@@ -316,8 +316,9 @@ def _fits(plan: Plan, sizing: Sizing, real: Sizing) -> bool:
 
 
 def _choose(plan: Plan, rng: random.Random, rules: m.ShopRules,
-            car: Car) -> tuple[Record, Sizing] | None:
-    """Try catalogue master/slave pairs in a seeded order; keep the first that fits."""
+            car: Car) -> tuple[Record, Sizing, Sizing] | None:
+    """Try catalogue master/slave pairs in a seeded order; keep the first that fits, with
+    its sizing and the car's (real_sizing)."""
     kind = "external" if plan.family.forks else "concentric"
     pairs = [(mc, sc) for mc in CATALOGUE["masters"] for sc in CATALOGUE["slaves"]
              if sc.fields["kind"] == kind]
@@ -326,8 +327,9 @@ def _choose(plan: Plan, rng: random.Random, rules: m.ShopRules,
         rec = _record(plan, _master_section(plan, mc), _slave_section(plan, sc, rng))
         build = load(rec)
         sizing = size_build(build, rules)
-        if _fits(plan, sizing, real_sizing(build, rules, car)):
-            return rec, sizing
+        real = real_sizing(build, rules, car)
+        if _fits(plan, sizing, real):
+            return rec, sizing, real
     return None
 
 
@@ -352,12 +354,10 @@ def _schedule(rng: random.Random) -> list[tuple[str, dt.date, str, str, str]]:
     return [(f"HW-{101 + n:04d}", *row) for n, row in enumerate(rows)]
 
 
-def _measure(rec: Record, rules: m.ShopRules, car: Car) -> dict:
-    """The measured section: what the car does, under the family's true losses, read with
-    the gauges' noise."""
+def _measure(rec: Record, ideal: Sizing) -> dict:
+    """The measured section: what the car does (`ideal`, the record's real_sizing), under
+    the family's true losses, read with the gauges' noise."""
     rng = random.Random(f"{SEED}-{rec.id}")
-    build = load(rec)
-    ideal = real_sizing(build, rules, car)
     family = rec.family
     eff, factor = FAMILY_EFFICIENCY[family], FAMILY_TRAVEL_FACTOR[family]
     system, method = TECHNICIANS[rec.technician]
@@ -434,9 +434,9 @@ def invent(rng: random.Random, rules: m.ShopRules, ident: str, date: dt.date, st
             break
     else:
         raise RuntimeError(f"{ident}: no catalogue pair fits a {family} '{trouble}' build")
-    rec, sizing = chosen
+    rec, sizing, real = chosen
     if status != "draft":
-        rec.measured = _measure(rec, rules, car)
+        rec.measured = _measure(rec, real)
     rec.outcome, notes = _notes(rec, sizing, trouble, rng)
     rec.notes = "\n".join(textwrap.wrap(notes, 88)) + "\n"  # as the block scalar reads
     return rec, sizing

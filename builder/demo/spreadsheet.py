@@ -28,12 +28,11 @@ import datetime as dt
 import io
 import random
 import sys
-import tempfile
 from pathlib import Path
 
 from builder import model
 from builder.engine import size_build
-from builder.records import load_build_file, load_catalogue, load_rules
+from builder.records import load_catalogue, load_rules, parse_build
 from builder.records._schema import schema
 from builder.records.writer import dump, ordered
 from builder.units import INCH, POUND_FORCE
@@ -224,11 +223,12 @@ def _attempt(rng: random.Random, base: _Row, catalogue: dict) -> _Row:
     return row
 
 
-def _size(row: _Row, shop: model.Shop, scratch: Path):
+def _size(row: _Row, shop: model.Shop):
+    """The row's record as written by records.writer and read back by the loader, sized."""
     data = {"id": f"{PREFIX}{row.job:04d}", "date": row.date, "status": "draft", **row.record}
-    path = scratch / f"{data['id']}.yaml"
-    path.write_text(dump(ordered(data, schema("build"))), encoding="utf-8")
-    return size_build(load_build_file(path, shop), shop.rules)
+    text = dump(ordered(data, schema("build")))
+    build = parse_build(text, shop.parts, f"{data['id']}.yaml", rules=shop.rules)
+    return size_build(build, shop.rules)
 
 
 def _fits(row: _Row, sizing) -> bool:
@@ -292,27 +292,26 @@ def make_rows(records_dir: Path) -> list[_Row]:
     rng = random.Random(SEED)
     planned = _schedule(rng)
     rows = []
-    with tempfile.TemporaryDirectory(prefix="fitment-demo-sheet-") as scratch:
-        for base in planned:
-            row_rng = random.Random(f"{SEED}-{base.job}")
-            for _ in range(400):
-                row = _attempt(row_rng, base, catalogue)
-                sizing = _size(row, shop, Path(scratch))
-                if _fits(row, sizing):
-                    break
-            else:
-                raise RuntimeError(f"no combination fits job {base.job}; widen the options")
-            _measure(row, sizing, row_rng)
-            row.cells["Job #"] = str(row.job)
-            row.cells["Date"] = row.date.strftime("%d/%m/%Y")
-            row.cells["Tech"] = row.tech
-            row.cells["Car"] = row_rng.choice(VEHICLES)
-            row.cells["Result"] = {"verified": row_rng.choice(["OK", "OK", "ok", " OK"]),
-                                   "measured": "", "rejected": "no good"}[row.status]
-            row.cells["Hours"] = f"{row_rng.choice((3, 4, 5, 6, 7, 8)) + row_rng.choice((0, 0.5)):g}"
-            note = HEAVY_NOTE if row.status == "rejected" else row_rng.choice(NOTES)
-            row.cells["Notes"], row.cells["Notes (cont.)"] = note
-            rows.append(row)
+    for base in planned:
+        row_rng = random.Random(f"{SEED}-{base.job}")
+        for _ in range(400):
+            row = _attempt(row_rng, base, catalogue)
+            sizing = _size(row, shop)
+            if _fits(row, sizing):
+                break
+        else:
+            raise RuntimeError(f"no combination fits job {base.job}; widen the options")
+        _measure(row, sizing, row_rng)
+        row.cells["Job #"] = str(row.job)
+        row.cells["Date"] = row.date.strftime("%d/%m/%Y")
+        row.cells["Tech"] = row.tech
+        row.cells["Car"] = row_rng.choice(VEHICLES)
+        row.cells["Result"] = {"verified": row_rng.choice(["OK", "OK", "ok", " OK"]),
+                               "measured": "", "rejected": "no good"}[row.status]
+        row.cells["Hours"] = f"{row_rng.choice((3, 4, 5, 6, 7, 8)) + row_rng.choice((0, 0.5)):g}"
+        note = HEAVY_NOTE if row.status == "rejected" else row_rng.choice(NOTES)
+        row.cells["Notes"], row.cells["Notes (cont.)"] = note
+        rows.append(row)
     for index, kind in ((6, "unit"), (14, "date"), (24, "part")):
         _slip(rows[index], kind, catalogue)
     return rows

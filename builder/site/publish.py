@@ -279,10 +279,14 @@ def remove_leftovers(out: Path) -> list[Path]:
             if fd is None:
                 continue
             try:
-                finished = folder / "site"
-                if parent == out.parent and not os.path.lexists(out) and read_manifest(finished) is not None \
-                        and foreign_files(finished) is None:
-                    os.rename(finished, out)  # the kill fell between the two fallback renames
+                if parent == out.parent:
+                    finished = folder / "site"
+                    if not os.path.lexists(out) and read_manifest(finished) is not None \
+                            and foreign_files(finished) is None:
+                        os.rename(finished, out)  # the kill fell between the two fallback renames
+                    for name in ("site", "old"):  # an old site the kill left (it has a manifest;
+                        if read_manifest(folder / name) is not None:  # a half-built one has none)
+                            keep_if_changed(folder / name, out)
                 shutil.rmtree(folder, ignore_errors=True)
                 removed.append(folder)
             finally:
@@ -331,11 +335,21 @@ def publish(new: Path, out: Path) -> None:
         except OSError as error:
             raise PublishError(out, f"could not put the new site in place: {error.strerror or error}; "
                                       "the last site stays") from None
-    if os.path.isdir(new) and foreign_files(new) is not None:  # the old site, changed meanwhile
-        kept = out.parent / f"{out.name}.kept-{os.getpid()}"
-        os.rename(new, kept)
+    kept = keep_if_changed(new, out)  # `new` is now the old site, if there was one
+    if kept is not None:
         raise PublishError(kept, f"the new site is at {out}; the old one gained or changed files "
                                    "during the build, so it was kept here instead of deleted")
+
+
+def keep_if_changed(old: Path, out: Path) -> Path | None:
+    """Before a staging folder is deleted: the old site in it, when it gained or changed
+    files since it was checked, is moved beside `out` instead, as `<out>.kept-<staging
+    folder's suffix>`. Returns where it went, or None (nothing there, or nothing changed)."""
+    if not os.path.isdir(old) or foreign_files(old) is None:
+        return None
+    kept = out.parent / f"{out.name}.kept-{old.parent.name.rsplit('-', 1)[-1]}"
+    os.rename(old, kept)
+    return kept
 
 
 def _swap_by_renames(new: Path, out: Path) -> None:
