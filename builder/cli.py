@@ -228,7 +228,7 @@ def report(ctx: Context, fmt: str, family: str | None, fork: str | None, status:
 def _known_family(analysis, family: str) -> None:
     """A usage error (exit 2) for a --family the shop has never heard of, naming the nearest.
     The shop's builds were loaded against the same families, so they name none outside it."""
-    from builder.records._load import known_families
+    from builder.records import known_families
 
     known = known_families(analysis.shop.parts, analysis.shop.rules)
     if family not in known:

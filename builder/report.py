@@ -150,26 +150,6 @@ def _cell(column: Column, value, primary: str) -> str:
     return say.NONE if value is None else str(value)
 
 
-def calibration_rows(analysis: Analysis) -> list[dict]:
-    """Shop-wide first, then each gearbox family by name, in SI-derived columns (percent)."""
-    return [
-        {
-            "group": name,
-            "builds": group.n,
-            "efficiency_pct": say.in_unit(group.efficiency, "%", 1),
-            "efficiency_spread_pct": say.in_unit(group.efficiency_mad, "%", 1),
-            "travel_factor_pct": say.in_unit(group.travel_factor, "%", 1),
-            "travel_spread_pct": say.in_unit(group.travel_factor_mad, "%", 1),
-            "own_weight_pct": say.in_unit(group.weight, "%", 1),
-            "loo_median_err_pct": say.in_unit(group.loo_median_abs_err, "%", 1),
-            "loo_p90_err_pct": say.in_unit(group.loo_p90_abs_err, "%", 1),
-            "loo_covered": f"{group.loo_covered}/{group.loo_intervals}",
-            "loo_coverage_pct": say.in_unit(group.loo_coverage, "%", 1),
-        }
-        for name, group in _groups(analysis)
-    ]
-
-
 def _groups(analysis: Analysis) -> list:
     calibration = analysis.calibration
     return [("shop-wide", calibration.shop)] + sorted(calibration.families.items())

@@ -375,7 +375,7 @@ def layout_never_raises(env: Env, content: bytes) -> None:
     json.dumps(checking.contract(result), allow_nan=False)
     checking.describe(result, "metric")
     reporting.render(reporting.report_rows(analysis), "csv")
-    reporting.render(reporting.calibration_rows(analysis), "table")
+    reporting.calibration_table(analysis)
     for _, page in generated_pages(analysis):
         assert "nan" not in page.lower().split() and "inf" not in page.lower().split()
 
