@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import json
 import re
-import shutil
 from pathlib import Path
 
 import pytest
@@ -20,10 +19,10 @@ from click.testing import CliRunner
 from builder.cli import main
 from browsing import search
 from builder.site.serve import StaticServer
+from clitools import copy_demo_shop
 
 pytestmark = pytest.mark.browser
 
-ROOT = Path(__file__).resolve().parents[1]
 HOSTILE_ID = "ZZ-0666"
 PAYLOADS = [
     "<script>window.__pwned=1;alert(1)</script>",
@@ -57,8 +56,7 @@ def _set(text: str, field: str, value: str) -> str:
 
 
 def hostile_shop(base: Path) -> Path:
-    shutil.copytree(ROOT / "records", base / "records")
-    shutil.copytree(ROOT / "schema", base / "schema")
+    copy_demo_shop(base)
     records = base / "records"
     source = next(path for path in sorted((records / "builds").glob("*/*.yaml"))  # master written out
                   if re.search(r"(?m)^master:\n  bore: ", path.read_text()))

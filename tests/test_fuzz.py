@@ -22,7 +22,6 @@ import copy
 import dataclasses
 import json
 import os
-import shutil
 from pathlib import Path
 
 import pytest
@@ -41,6 +40,7 @@ from builder.records import (load_build_file, load_catalogue, load_rules, load_s
                              validate_paths)
 from builder.records._yaml import MAX_DEPTH, _depth_bound
 from builder.site.pages import generated_pages
+from clitools import copy_demo_shop
 
 ROOT = Path(__file__).resolve().parents[1]
 QUICK = 120
@@ -59,8 +59,7 @@ class Env:
     """A private copy of the demo shop, its analysis, and scratch files for each example."""
 
     def __init__(self, base: Path):
-        shutil.copytree(ROOT / "records", base / "records")
-        shutil.copytree(ROOT / "schema", base / "schema")
+        copy_demo_shop(base)
         self.records = base / "records"
         self.analysis = analyse(load_shop(self.records))
         self.in_records = self.records / "builds" / "2099" / "FZ-0001.yaml"

@@ -24,6 +24,7 @@ from payloads import laughs
 from click.testing import CliRunner
 
 from builder.cli import main
+from clitools import copy_demo_shop
 
 ROOT = Path(__file__).resolve().parents[1]
 MAX_BYTES = 256 * 1024  # builder.records._yaml.MAX_BYTES, stated here as the contract
@@ -56,8 +57,7 @@ PUSHROD_LINE = re.search(r"(?m)^(  pushrod: .*\n)", _SAMPLE_TEXT)[1]
 @pytest.fixture
 def shop(tmp_path: Path) -> Path:
     """A private copy of the demo shop: records/ with schema/ beside it, as in a clone."""
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     return tmp_path / "records"
 
 

@@ -16,7 +16,6 @@ from __future__ import annotations
 
 import json
 import re
-import shutil
 from pathlib import Path
 
 import pint
@@ -27,6 +26,7 @@ from builder.cli import main
 from samples import HW_0134
 from builder.problems import PLACEHOLDER, InputError
 from builder.records import load_rules, load_shop, validate_paths
+from clitools import copy_demo_shop
 
 ROOT = Path(__file__).resolve().parents[1]
 SAMPLE = "2025/HW-0134"  # a measured build: family BQ-4F, two pedal lengths, no layout
@@ -37,8 +37,7 @@ IN = 0.0254  # m, NIST SP 811 B.8
 @pytest.fixture
 def shop(tmp_path: Path) -> Path:
     """A private copy of the demo shop (records/ and schema/ beside it, as in a clone)."""
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     (tmp_path / "records" / "builds" / f"{SAMPLE}.yaml").write_text(HW_0134)
     return tmp_path / "records"
 

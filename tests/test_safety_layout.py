@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import math
 import re
-import shutil
 from pathlib import Path
 
 import pytest
@@ -17,8 +16,8 @@ import scipy.optimize
 from click.testing import CliRunner
 
 from builder.cli import main
+from clitools import copy_demo_shop
 
-ROOT = Path(__file__).resolve().parents[1]
 PIVOT, PAD, CLEVIS, SEAT, SWING = (0, 0), (-90, -296), (54, 12), (114, -60), 77.0  # mm, deg
 COMMANDS = [["validate"], ["check", "{record}"], ["report"], ["calibration"],
             ["site", "build", "--out", "{out}"]]
@@ -46,8 +45,7 @@ def toggle_degrees() -> float:
 
 @pytest.fixture
 def shop(tmp_path: Path) -> tuple[Path, Path, int]:
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     records = tmp_path / "records"
     target = next(path for path in sorted((records / "builds").rglob("HW-*.yaml"))  # a measured
                   if "\n  layout:" in path.read_text() and "\nmeasured:" in path.read_text())  # layout

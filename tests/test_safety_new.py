@@ -7,22 +7,20 @@ a symbolic link included; Linux open(2): O_NOFOLLOW fails with ELOOP on a link).
 from __future__ import annotations
 
 import datetime as dt
-import shutil
 from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
 
 from builder.cli import main
+from clitools import copy_demo_shop
 
-ROOT = Path(__file__).resolve().parents[1]
 YEAR = str(dt.date.today().year)  # `fitment new` files a draft under this year's folder
 
 
 @pytest.fixture
 def shop(tmp_path: Path) -> Path:
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     return tmp_path / "records"
 
 

@@ -19,7 +19,7 @@ from pathlib import Path
 import pytest
 
 from builder.records import load_shop, validate_paths
-from clitools import assert_refused, invoke
+from clitools import assert_refused, copy_demo_shop, invoke
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO_BUILDS = len(list((ROOT / "records" / "builds").rglob("*.yaml")))
@@ -31,8 +31,7 @@ ANALYSING = [["report"], ["calibration"], ["check", "records/builds/2025/HW-0134
 def shop(tmp_path: Path, monkeypatch) -> Path:
     """A private copy of the demo shop: records/ with schema/ beside it, as in a clone; the
     working directory is its folder, so relative paths land there."""
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     monkeypatch.chdir(tmp_path)
     return tmp_path / "records"
 

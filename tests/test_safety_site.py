@@ -12,7 +12,6 @@ import fcntl
 import hashlib
 import json
 import os
-import shutil
 import signal
 import subprocess
 import sys
@@ -24,7 +23,7 @@ import pytest
 from builder.site import PublishError, publish_site
 from builder.site import publish as site_publish
 from site_shops import analysis
-from clitools import assert_refused, invoke
+from clitools import assert_refused, copy_demo_shop, invoke
 
 ROOT = Path(__file__).resolve().parents[1]
 KEEP = 6  # builds kept in the copied shop: enough for every page kind, quick to build
@@ -36,8 +35,7 @@ KEEP = 6  # builds kept in the copied shop: enough for every page kind, quick to
 def shop(tmp_path: Path, monkeypatch) -> Path:
     """A small copy of the demo shop (records/ and schema/), its folder the working directory,
     and a private temp folder (where killed builds leave their docs folders)."""
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     builds = sorted((tmp_path / "records" / "builds").rglob("*.yaml"))
     for extra in builds[KEEP:]:
         extra.unlink()

@@ -7,7 +7,6 @@ ARABIC LETTER MARK), looked up by name.
 """
 from __future__ import annotations
 
-import shutil
 import sys
 import unicodedata
 from pathlib import Path
@@ -17,8 +16,8 @@ from click.testing import CliRunner
 
 from builder.cli import main
 from builder.problems import terminal_safe
+from clitools import copy_demo_shop
 
-ROOT = Path(__file__).resolve().parents[1]
 EXPLICIT = {"LRE", "RLE", "LRO", "RLO", "PDF", "LRI", "RLI", "FSI", "PDI"}
 MARKS = ["LEFT-TO-RIGHT MARK", "RIGHT-TO-LEFT MARK", "ARABIC LETTER MARK"]
 BIDI = sorted({chr(c) for c in range(sys.maxunicode + 1) if unicodedata.bidirectional(chr(c)) in EXPLICIT}
@@ -39,8 +38,7 @@ def test_other_text_is_left_as_it_is():
 
 @pytest.fixture
 def shop(tmp_path: Path) -> Path:
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     return tmp_path / "records"
 
 

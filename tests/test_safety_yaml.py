@@ -8,7 +8,6 @@ converts would have printed instead.
 """
 from __future__ import annotations
 
-import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -21,6 +20,7 @@ from click.testing import CliRunner
 from builder.cli import main
 from builder.records import load_shop, validate_paths
 from builder.records._yaml import careful_load
+from clitools import copy_demo_shop
 
 ROOT = Path(__file__).resolve().parents[1]
 SAMPLE = "builds/2025/HW-0134.yaml"  # a measured build with a fork and a load curve
@@ -29,8 +29,7 @@ SAMPLE = "builds/2025/HW-0134.yaml"  # a measured build with a fork and a load c
 @pytest.fixture
 def shop(tmp_path: Path) -> Path:
     """A private copy of the demo shop: records/ with schema/ beside it, as in a clone."""
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     (tmp_path / "records" / SAMPLE).write_text(HW_0134)
     return tmp_path / "records"
 

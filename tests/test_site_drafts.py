@@ -7,14 +7,13 @@ from __future__ import annotations
 
 import html
 import re
-import shutil
 from pathlib import Path
 
 from click.testing import CliRunner
 
 from builder.cli import main
+from clitools import copy_demo_shop
 
-ROOT = Path(__file__).resolve().parents[1]
 
 
 def page_text(path: Path) -> str:
@@ -22,8 +21,7 @@ def page_text(path: Path) -> str:
 
 
 def test_a_failing_draft_shows_what_to_order_as_check_does(tmp_path):
-    shutil.copytree(ROOT / "records", tmp_path / "records")
-    shutil.copytree(ROOT / "schema", tmp_path / "schema")
+    copy_demo_shop(tmp_path)
     records = tmp_path / "records"
     draft = next(path for path in sorted((records / "builds").rglob("HW-*.yaml"))
                  if "status: draft" in path.read_text() and "\nmaster:\n  part:" in path.read_text()
