@@ -107,6 +107,15 @@ def test_a_concentric_slave_stays_concentric():
     assert {row.build.slave.kind for row in result.ranked} <= {"concentric"}
 
 
+def test_a_pull_slave_is_not_tried_for_a_push_proposal():
+    # a pull slave pulls the fork where a push slave pushes it: it cannot stand in for one
+    mixed = catalogue([master_part("MC-100", 1.0)],
+                      [slave_part("SC-112", 1.125), slave_part("SP-112", 1.125, acts="pull")])
+    result = suggest(analyse(shop(mixed)), proposal())
+    assert result.tried["slaves"] == 2  # its own and SC-112
+    assert {row.build.slave.part for row in result.ranked} == {None, "SC-112"}
+
+
 # --- nothing qualifies --------------------------------------------------------------------------
 
 NONE = catalogue([master_part("MC-050", 0.5)], [slave_part("SC-150", 1.5)])
@@ -215,6 +224,19 @@ def test_pressure_is_judged_at_its_worst_case_against_every_rating():
     assert (miss.rule, miss.subject) == ("pressure-over-rating", "slave")
     assert miss.value == pytest.approx(static / 0.85 * PSI, rel=1e-9)
     assert row.headroom == pytest.approx(220 / (static / 0.85) - 1, rel=1e-9)
+
+
+def test_a_margin_past_the_shops_most_misses_travel_over():
+    # by hand: the 1 in master on the 1-1/8 in slave has a 43.7 % margin, the only pair of
+    # ONE that qualifies; with the shop's most at 30 % it misses by 13.7 points
+    margin = by_hand(1.0, 1.125)[1]
+    assert margin == pytest.approx(0.437, abs=5e-4)
+    result = suggest(analyse(shop(ONE, max_travel_margin=0.30)), proposal())
+    row = next(r for r in result.ranked if parts_of(r) == ("MC-100", "SC-112"))
+    [miss] = row.misses
+    assert (miss.rule, miss.limit) == ("travel-over", 0.30)
+    assert miss.shortfall == pytest.approx(margin - 0.30, rel=1e-9)
+    assert result.qualifying == 0 and result.recommendation is None
 
 
 def test_a_master_that_bottoms_early_misses():
