@@ -239,6 +239,24 @@ def test_a_margin_past_the_shops_most_misses_travel_over():
     assert result.qualifying == 0 and result.recommendation is None
 
 
+def test_the_margin_is_the_smaller_after_the_shops_measured_travel_losses():
+    # Three finished roadsters whose slaves measured 90 % of the travel worked out, so the
+    # shop's travel factor is 0.9 whatever the shrinkage. The bearing travel is in proportion
+    # to the slave's (a lever, Shigley), so a candidate's margin after losses is
+    # 0.9 (1 + margin) - 1: 29.3 % for the 1 in master on the 1-1/8 in slave (by hand).
+    reach = (7.0 / 5.5) / (0.875 / 0.625) ** 2  # in: equal volumes, Pascal
+    finished = tuple(dataclasses.replace(
+        proposal(), id=f"ZZ-04{n:02d}", status="verified",
+        measured=Measured(pedal_effort=30 * POUND_FORCE, slave_travel=0.9 * reach * INCH))
+        for n in range(1, 4))
+    result = suggest(analyse(shop(ONE, finished)), proposal())
+    row = next(r for r in result.ranked if parts_of(r) == ("MC-100", "SC-112"))
+    margin = by_hand(1.0, 1.125)[1]
+    assert row.sizing.margin == pytest.approx(margin, rel=1e-9)  # the engine's stays
+    assert row.margin == pytest.approx(0.9 * (1.0 + margin) - 1.0, rel=1e-9)
+    assert row.margin == pytest.approx(0.293, abs=5e-4)
+
+
 def test_a_master_that_bottoms_early_misses():
     short = catalogue([master_part("MC-100", 1.0, stroke_in=1.0)], [slave_part("SC-112", 1.125)])
     row = next(r for r in suggest(analyse(shop(short)), proposal()).ranked
