@@ -257,6 +257,22 @@ def test_the_margin_is_the_smaller_after_the_shops_measured_travel_losses():
     assert row.margin == pytest.approx(0.293, abs=5e-4)
 
 
+def test_a_miss_a_rejected_build_used_comes_after_the_other_misses():
+    # NONE's nearest miss by hand is the 1/2 in master on the proposal's slave (see
+    # hand_shortfall); once a rejected roadster used it, it follows the other two misses.
+    rejected = dataclasses.replace(
+        with_parts(make_build(), NONE["masters"]["MC-050"], NONE["slaves"]["SC-150"],
+                   "ZZ-0104", "rejected", outcome="would not release"),
+        slave=proposal().slave)
+    plain = suggest(analyse(shop(NONE)), proposal())
+    nearest = parts_of(plain.ranked[0])
+    assert nearest == ("MC-050", None)
+    result = suggest(analyse(shop(NONE, (rejected,))), proposal())
+    assert [parts_of(row) for row in result.ranked] == (
+        [parts_of(row) for row in plain.ranked if parts_of(row) != nearest] + [nearest])
+    assert [use.id for use in result.ranked[-1].rejected] == ["ZZ-0104"]
+
+
 def test_a_master_that_bottoms_early_misses():
     short = catalogue([master_part("MC-100", 1.0, stroke_in=1.0)], [slave_part("SC-112", 1.125)])
     row = next(r for r in suggest(analyse(shop(short)), proposal()).ranked
