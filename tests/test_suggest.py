@@ -343,6 +343,15 @@ def test_layout_clevis_points_and_lengths_on_the_arm():
     assert all(r.build.pedal.layout.pushrod_seat == layout.pushrod_seat for r in result.ranked)
 
 
+def test_a_layout_hole_within_a_tenth_of_a_millimetre_of_the_one_in_use_is_that_one():
+    layout = PedalLayout(pivot=(0.0, 0.0), pad=(0.0, -11.0 * INCH), clevis=(0.0, -2.0 * INCH),
+                         pushrod_seat=(6.0 * INCH, -2.0 * INCH), rotation_to_stop=math.radians(30),
+                         clevis_positions=((0.00005, -2.0 * INCH), (0.0, -2.5 * INCH)))
+    pedal = dataclasses.replace(make_build().pedal, layout=layout)
+    result = suggest(analyse(shop(TWO)), dataclasses.replace(proposal(), pedal=pedal))
+    assert result.tried["clevis"] == 2  # the hole in use and the one 0.5 in further out
+
+
 def test_sensitivity_of_one_sixteenth_step():
     result = suggest(analyse(shop(NONE)), proposal())
     master, slave = result.sensitivities
