@@ -13,8 +13,7 @@ import pytest
 import scipy.optimize
 
 from builder.engine import size_build
-from builder.model import PedalLayout
-from factories import INCH, POUND_FORCE, make_build, make_rules
+from factories import INCH, POUND_FORCE, make_build, make_rules, norton_layout, norton_slider
 
 LOSSLESS = make_rules(lossless=True)
 
@@ -77,20 +76,13 @@ def test_release_point_is_on_the_travel_the_pedal_really_has():
     assert flag.value("usable") == s.usable_pad_travel
 
 
-def norton_slider(r: float, l: float, e: float, t: float) -> float:
-    """Offset slider-crank slider position (Norton, Design of Machinery)."""
-    return r * math.cos(t) + math.sqrt(l * l - (r * math.sin(t) - e) ** 2)
-
-
 def test_headline_effort_is_the_virtual_work_peak_of_the_slider_crank():
     # Virtual work (Norton, Design of Machinery): F_pad = F_b dx_b / dx_pad. Worked here on
     # Norton's own closed form, differentiated by central differences, over 4,000 crank
     # angles; the engine's headline must equal the peak (to the grid) and sit where it is.
     r, l, t0, pad_r, swing = 0.05, 0.14, math.radians(80), 0.28, math.radians(30)
     e = r * math.sin(t0)
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    pad = (pad_r * math.cos(t0), pad_r * math.sin(t0))
-    layout = PedalLayout((0.0, 0.0), pad, clevis, (clevis[0] + l, clevis[1]), swing)
+    layout = norton_layout(r, l, t0, swing, pad_radius=pad_r)
     curve = ((0.0, 0.0), (0.002, 1500.0), (0.0045, 1800.0), (0.008, 1300.0))
     play, dead, clearance = 0.001, 0.0015, 0.0012
     build = make_build(layout=layout, pad_travel=pad_r * swing, load_curve=curve,
@@ -125,9 +117,7 @@ def test_without_a_curve_effort_is_taken_at_the_release_point():
     # central differences; the crank angle found with scipy's brentq).
     r, l, t0, pad_r, swing = 0.05, 0.14, math.radians(80), 0.28, math.radians(40)
     e = r * math.sin(t0)
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    layout = PedalLayout((0.0, 0.0), (pad_r * math.cos(t0), pad_r * math.sin(t0)), clevis,
-                         (clevis[0] + l, clevis[1]), swing)
+    layout = norton_layout(r, l, t0, swing, pad_radius=pad_r)
     build = make_build(layout=layout, pad_travel=pad_r * swing, free_play=0.001,
                        dead_stroke=0.0015)
     s = size_build(build, LOSSLESS, efficiency=1.0)
