@@ -1,6 +1,7 @@
 """Pedal linkage: levers and the slider-crank against textbook closed forms."""
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import pytest
@@ -85,6 +86,16 @@ def test_bore_axis_square_to_the_pushrod_is_a_geometry_error():
     with pytest.raises(GeometryError) as caught:
         SliderCrankPedal(layout)
     assert caught.value.reason == "axis-across-pushrod"
+    # Short of square too: past asin(0.999) = 87.4 deg at rest (the engine's own limit, no
+    # source) the pushrod pushes almost across the bore and is refused the same way; 87 is not.
+    for degrees, refused in ((88.0, True), (87.0, False)):
+        near = dataclasses.replace(layout, bore_axis=math.radians(degrees))
+        if refused:
+            with pytest.raises(GeometryError) as caught:
+                SliderCrankPedal(near)
+            assert caught.value.reason == "axis-across-pushrod"
+        else:
+            assert SliderCrankPedal(near).stroke_at_stop > 0.0
 
 
 def test_pushrod_angle_matches_geometry():
