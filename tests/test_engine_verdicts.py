@@ -59,6 +59,15 @@ def test_shop_defaults_apply_when_a_record_gives_none():
     assert size_build(make_build(dead_stroke=0.0), rules).lost_pad_travel == pytest.approx(0.0055)
 
 
+def test_lost_travel_is_at_most_the_travel_the_pedal_has():
+    # 10 mm of pad travel on the 5.5 lever moves the pushrod 10 / 5.5 = 1.818 mm, short of
+    # the 1 mm free play plus 1.5 mm dead stroke: the whole 10 mm is lost (not 5.5 * 2.5 =
+    # 13.75 mm) and the slave does not move (by hand, Shigley, levers).
+    s = size_build(make_build(pad_travel=0.010, free_play=0.001, dead_stroke=0.0015), LOSSLESS)
+    assert s.lost_pad_travel == pytest.approx(0.010, rel=1e-9)
+    assert s.slave_travel == 0.0 and codes(s)["travel-short"] == "fail"
+
+
 def test_release_point_is_on_the_travel_the_pedal_really_has():
     # The master bottoms before the floor stop, so the pedal's usable travel ends there:
     # 11 in / 2 in lever (R_p 5.5), 1.0 in stroke, 1 mm free play, 8 in to the stop.
