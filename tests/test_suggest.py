@@ -107,6 +107,16 @@ def test_a_concentric_slave_stays_concentric():
     assert {row.build.slave.kind for row in result.ranked} <= {"concentric"}
 
 
+def test_a_proposal_built_from_catalogue_parts_tries_each_part_once():
+    master, slave = ONE["masters"]["MC-100"], ONE["slaves"]["SC-112"]
+    built = dataclasses.replace(proposal(), master=dataclasses.replace(master.section, part="MC-100"),
+                                slave=dataclasses.replace(slave.section, part="SC-112"))
+    result = suggest(analyse(shop(ONE)), built)
+    # its own MC-100 and SC-112 and the other two parts of ONE: 2 masters, 2 external slaves
+    assert result.tried == {"masters": 2, "slaves": 2, "clevis": 1}
+    assert all(change.part != change.was_part for row in result.ranked for change in row.changes)
+
+
 def test_a_pull_slave_is_not_tried_for_a_push_proposal():
     # a pull slave pulls the fork where a push slave pushes it: it cannot stand in for one
     mixed = catalogue([master_part("MC-100", 1.0)],
