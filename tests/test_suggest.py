@@ -117,6 +117,19 @@ def test_a_proposal_built_from_catalogue_parts_tries_each_part_once():
     assert all(change.part != change.was_part for row in result.ranked for change in row.changes)
 
 
+def test_an_area_slave_against_a_bore_slave_is_compared_by_area_and_gets_no_standard_bores():
+    # a concentric slave given by piston area; the catalogue's concentric slave by bore
+    concentric = dataclasses.replace(
+        make_build(fork=None, slave_bore=None, piston_area=8.0e-4, slave_stroke=0.6 * INCH),
+        id="PR-0003")
+    parts = catalogue([], [slave_part("CS-112", 1.125, stroke_in=0.6, kind="concentric")])
+    result = suggest(analyse(shop(parts)), concentric, sizes="standard")
+    assert result.tried["slaves"] == 2  # its own and CS-112: no standard bore for an area
+    [change] = {c for row in result.ranked for c in row.changes if c.what == "slave"}
+    assert (change.part, change.dimension, change.was) == ("CS-112", "area", 8.0e-4)
+    assert change.value == pytest.approx(math.pi / 4 * (1.125 * INCH) ** 2, rel=1e-12)
+
+
 def test_a_pull_slave_is_not_tried_for_a_push_proposal():
     # a pull slave pulls the fork where a push slave pushes it: it cannot stand in for one
     mixed = catalogue([master_part("MC-100", 1.0)],
