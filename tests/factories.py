@@ -97,6 +97,36 @@ def make_build(
     )
 
 
+def norton_slider(r: float, l: float, e: float, t: float) -> float:
+    """Offset slider-crank slider position, x = r cos t + sqrt(l^2 - (r sin t - e)^2)
+    (Norton, Design of Machinery, offset slider-crank position analysis): the outside
+    reference the engine's linkage is checked against, not a maker."""
+    return r * math.cos(t) + math.sqrt(l * l - (r * math.sin(t) - e) ** 2)
+
+
+def norton_layout(r: float, l: float, t0: float, swing: float, frame=(0.0, 0.0, 0.0),
+                  pad_radius: float | None = None) -> PedalLayout:
+    """Norton's crank (radius r) at angle t0 with the slider line y = e = r sin t0, so the
+    pushrod (length l) lies on the bore axis at rest; the pad on the crank's line at
+    pad_radius (default 3 r); the whole picture rotated by frame[2] and moved by frame[:2]
+    (any consistent frame)."""
+    dx, dy, turn = frame
+
+    def place(x, y):
+        c, s = math.cos(turn), math.sin(turn)
+        return (dx + x * c - y * s, dy + x * s + y * c)
+
+    clevis = (r * math.cos(t0), r * math.sin(t0))
+    pad = 3.0 * r if pad_radius is None else pad_radius
+    return PedalLayout(
+        pivot=place(0.0, 0.0),
+        pad=place(pad * math.cos(t0), pad * math.sin(t0)),
+        clevis=place(*clevis),
+        pushrod_seat=place(clevis[0] + l, clevis[1]),
+        rotation_to_stop=swing,
+    )
+
+
 def square_layout(pad_radius: float, clevis_radius: float, rod: float,
                   swing: float) -> PedalLayout:
     """Pedal hanging down from the pivot, pushrod square to the arm at rest (forward)."""

@@ -21,9 +21,9 @@ def master_part(part_id: str, bore_in: float, stroke_in: float = 1.40,
 
 def slave_part(part_id: str, bore_in: float | None, stroke_in: float = 1.25,
                kind: str = "external", area: float | None = None,
-               rating: float | None = None) -> Part:
+               rating: float | None = None, acts: str | None = None) -> Part:
     section = Slave(kind=kind, bore=None if bore_in is None else bore_in * INCH,
-                    piston_area=area, stroke=stroke_in * INCH, rated_pressure=rating)
+                    piston_area=area, stroke=stroke_in * INCH, rated_pressure=rating, acts=acts)
     return Part("slaves", part_id, f"invented {kind} slave", section)
 
 

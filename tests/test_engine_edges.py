@@ -16,15 +16,9 @@ from builder.engine import size_build
 from builder.engine.effort import interpolate
 from builder.engine.linkage import SliderCrankPedal
 from builder.model import PedalLayout
-from factories import INCH, make_build, make_rules, square_layout
+from factories import INCH, make_build, make_rules, norton_layout, norton_slider, square_layout
 
 LOSSLESS = make_rules(lossless=True)
-
-
-def norton_slider(r: float, l: float, e: float, t: float) -> float:
-    """Offset slider-crank slider position, x = r cos t + sqrt(l^2 - (r sin t - e)^2)
-    (Norton, Design of Machinery, offset slider-crank position analysis)."""
-    return r * math.cos(t) + math.sqrt(l * l - (r * math.sin(t) - e) ** 2)
 
 
 def _trapezoid(points):
@@ -104,16 +98,7 @@ def test_the_slider_crank_solved_backwards_matches_norton(frame):
     # Norton's closed form; in any frame.
     r, l, t0 = 0.05, 0.14, math.radians(75)
     e = r * math.sin(t0)
-    dx, dy, turn = frame
-
-    def place(x, y):
-        c, s_ = math.cos(turn), math.sin(turn)
-        return (dx + x * c - y * s_, dy + x * s_ + y * c)
-
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    layout = PedalLayout(place(0, 0), place(3 * clevis[0], 3 * clevis[1]), place(*clevis),
-                         place(clevis[0] + l, clevis[1]), math.radians(30))
-    pedal = SliderCrankPedal(layout)
+    pedal = SliderCrankPedal(norton_layout(r, l, t0, math.radians(30), frame))
     x0 = norton_slider(r, l, e, t0)
     for stroke in (1e-4, 0.004, 0.011, 0.019, pedal.stroke_at_stop * 0.999):
         theta = scipy.optimize.brentq(
@@ -263,9 +248,7 @@ def test_refined_peak_against_a_bounded_minimiser_on_nortons_form():
     # Norton); scipy's bounded minimiser on the closed form finds it to 1e-12 in angle.
     r, l, t0, pad_r, swing = 0.05, 0.14, math.radians(80), 0.28, math.radians(30)
     e = r * math.sin(t0)
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    layout = PedalLayout((0.0, 0.0), (pad_r * math.cos(t0), pad_r * math.sin(t0)), clevis,
-                         (clevis[0] + l, clevis[1]), swing)
+    layout = norton_layout(r, l, t0, swing, pad_radius=pad_r)
     curve = ((0.0, 0.0), (0.002, 1500.0), (0.0045, 1800.0), (0.008, 1300.0))
     s = size_build(make_build(layout=layout, pad_travel=pad_r * swing, load_curve=curve,
                               release_load=None, clearance=0.0, slave_stroke=2 * INCH),
@@ -295,9 +278,7 @@ def test_a_peak_between_samples_is_found_where_the_ratio_is_lowest():
     # scipy's bounded minimiser on Norton's closed form, differentiated exactly.
     r, l, t0, pad_r, swing = 0.05, 0.14, math.radians(100), 0.28, math.radians(30)
     e = r * math.sin(t0)
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    layout = PedalLayout((0.0, 0.0), (pad_r * math.cos(t0), pad_r * math.sin(t0)), clevis,
-                         (clevis[0] + l, clevis[1]), swing)
+    layout = norton_layout(r, l, t0, swing, pad_radius=pad_r)
     s = size_build(make_build(layout=layout, pad_travel=pad_r * swing,
                               load_curve=((0.0, 1800.0),), release_load=None, clearance=0.0,
                               slave_stroke=2 * INCH), LOSSLESS, efficiency=1.0)
@@ -329,10 +310,7 @@ def test_the_sweep_carries_the_pushrod_angle_at_every_sample():
     # asin(|r sin t - e| / l) (Norton) peaks at t = 90 deg when t0 = 110 deg.
     r, l, t0 = 0.05, 0.14, math.radians(110)
     e = r * math.sin(t0)
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    layout = PedalLayout((0.0, 0.0), (3 * clevis[0], 3 * clevis[1]), clevis,
-                         (clevis[0] + l, clevis[1]), math.radians(40))
-    pedal = SliderCrankPedal(layout)
+    pedal = SliderCrankPedal(norton_layout(r, l, t0, math.radians(40)))
     for theta, row in zip(pedal._thetas, pedal.sweep()):
         assert row[3] == pytest.approx(math.asin(abs(r * math.sin(t0 - theta) - e) / l),
                                        abs=1e-12)

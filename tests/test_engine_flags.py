@@ -87,6 +87,21 @@ def test_master_volume_short_carries_the_dead_stroke_and_not_at_equality():
     assert "master-volume-short" not in {f.code for f in checks.travel_flags(equal, RULES, build)}
 
 
+def test_master_volume_short_counts_the_line_losses():
+    # By hand, the invented roadster with hose swell only (incompressible fluid): 400 lbf on a
+    # 2:1 fork over a 7/8 in slave is p = 200 lbf / A_s (OpenStax, "Pascal's Principle");
+    # the braided line swells 5e-14 m^2/Pa over its 36 in, dV = 5e-14 * L * p; the master
+    # must push V = A_s * 0.35 in * 2 + dV. A 3/4 in master whose stroke sweeps V - dV / 2 is
+    # short, though it would cover the travel with no losses at all.
+    rules = make_rules(fluid_bulk_modulus=math.inf)
+    a_s, a_m = math.pi / 4 * (0.875 * INCH) ** 2, math.pi / 4 * (0.75 * INCH) ** 2
+    losses = 5.0e-14 * 36 * INCH * (200 * POUND_FORCE / a_s)
+    needed = a_s * 0.35 * INCH * 2 + losses
+    s = size_build(make_build(master_stroke=(needed - losses / 2) / a_m), rules)
+    assert (s.losses_volume, s.needed_volume) == pytest.approx((losses, needed), rel=1e-9)
+    assert by_code(s)["master-volume-short"].value("swept") == pytest.approx(needed - losses / 2)
+
+
 def test_slave_overtravel_and_floor_gap_figures():
     s = size_build(make_build(slave_stroke=0.6 * INCH), RULES)
     assert by_code(s)["slave-overtravel"] == Flag("slave-overtravel", "fail", (

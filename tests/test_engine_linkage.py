@@ -1,6 +1,7 @@
 """Pedal linkage: levers and the slider-crank against textbook closed forms."""
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import pytest
@@ -9,33 +10,7 @@ import scipy.optimize
 from builder.engine import GeometryError, size_build
 from builder.engine.linkage import LeverPedal, SliderCrankPedal, arc_length, lever_ratio
 from builder.model import PedalLayout
-from factories import INCH, make_build, make_rules, square_layout
-
-
-def norton_slider(r: float, l: float, e: float, t: float) -> float:
-    """Offset slider-crank slider position, x = r cos t + sqrt(l^2 - (r sin t - e)^2)
-    (Norton, Design of Machinery, offset slider-crank position analysis)."""
-    return r * math.cos(t) + math.sqrt(l * l - (r * math.sin(t) - e) ** 2)
-
-
-def norton_layout(r: float, l: float, t0: float, swing: float, frame=(0.0, 0.0, 0.0)):
-    """Norton's crank at angle t0 with the slider line y = e = r sin t0, so the pushrod
-    lies on the bore axis at rest; the whole picture rotated by frame[2] and moved by
-    frame[:2] (any consistent frame)."""
-    dx, dy, turn = frame
-
-    def place(x, y):
-        c, s = math.cos(turn), math.sin(turn)
-        return (dx + x * c - y * s, dy + x * s + y * c)
-
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    return PedalLayout(
-        pivot=place(0.0, 0.0),
-        pad=place(3.0 * clevis[0], 3.0 * clevis[1]),
-        clevis=place(*clevis),
-        pushrod_seat=place(clevis[0] + l, clevis[1]),
-        rotation_to_stop=swing,
-    )
+from factories import INCH, make_build, make_rules, norton_layout, norton_slider, square_layout
 
 
 def test_lever_ratio_and_arc():
@@ -111,6 +86,16 @@ def test_bore_axis_square_to_the_pushrod_is_a_geometry_error():
     with pytest.raises(GeometryError) as caught:
         SliderCrankPedal(layout)
     assert caught.value.reason == "axis-across-pushrod"
+    # Short of square too: past asin(0.999) = 87.4 deg at rest (the engine's own limit, no
+    # source) the pushrod pushes almost across the bore and is refused the same way; 87 is not.
+    for degrees, refused in ((88.0, True), (87.0, False)):
+        near = dataclasses.replace(layout, bore_axis=math.radians(degrees))
+        if refused:
+            with pytest.raises(GeometryError) as caught:
+                SliderCrankPedal(near)
+            assert caught.value.reason == "axis-across-pushrod"
+        else:
+            assert SliderCrankPedal(near).stroke_at_stop > 0.0
 
 
 def test_pushrod_angle_matches_geometry():

@@ -251,6 +251,12 @@ def test_pressure_over_rating_names_the_cylinder():
     [flag] = [f for f in s.flags if f.code == "pressure-over-rating"]
     assert flag.subject == "master" and flag.value("rating") == 300 * PSI
     assert flag.value("pressure") == s.pressure_worst == s.pressure / 0.85
+    # by hand: 400 lbf / 2 on a 7/8 in piston (0.60132 in^2) is 332.60 psi static (p = F / A,
+    # OpenStax "Pascal's Principle"), 391.30 psi at the shop's 0.85 and 665.20 psi at an
+    # efficiency of 0.5 given to the engine (static / efficiency, OpenStax "Simple Machines")
+    assert s.pressure_worst == pytest.approx(391.30 * PSI, rel=2e-5)
+    halved = size_build(make_build(), make_rules(), efficiency=0.5)
+    assert halved.pressure_worst == pytest.approx(665.20 * PSI, rel=2e-5)
 
 
 def test_master_volume_short():

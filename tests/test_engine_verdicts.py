@@ -13,8 +13,7 @@ import pytest
 import scipy.optimize
 
 from builder.engine import size_build
-from builder.model import PedalLayout
-from factories import INCH, POUND_FORCE, make_build, make_rules
+from factories import INCH, POUND_FORCE, make_build, make_rules, norton_layout, norton_slider
 
 LOSSLESS = make_rules(lossless=True)
 
@@ -60,6 +59,15 @@ def test_shop_defaults_apply_when_a_record_gives_none():
     assert size_build(make_build(dead_stroke=0.0), rules).lost_pad_travel == pytest.approx(0.0055)
 
 
+def test_lost_travel_is_at_most_the_travel_the_pedal_has():
+    # 10 mm of pad travel on the 5.5 lever moves the pushrod 10 / 5.5 = 1.818 mm, short of
+    # the 1 mm free play plus 1.5 mm dead stroke: the whole 10 mm is lost (not 5.5 * 2.5 =
+    # 13.75 mm) and the slave does not move (by hand, Shigley, levers).
+    s = size_build(make_build(pad_travel=0.010, free_play=0.001, dead_stroke=0.0015), LOSSLESS)
+    assert s.lost_pad_travel == pytest.approx(0.010, rel=1e-9)
+    assert s.slave_travel == 0.0 and codes(s)["travel-short"] == "fail"
+
+
 def test_release_point_is_on_the_travel_the_pedal_really_has():
     # The master bottoms before the floor stop, so the pedal's usable travel ends there:
     # 11 in / 2 in lever (R_p 5.5), 1.0 in stroke, 1 mm free play, 8 in to the stop.
@@ -77,20 +85,13 @@ def test_release_point_is_on_the_travel_the_pedal_really_has():
     assert flag.value("usable") == s.usable_pad_travel
 
 
-def norton_slider(r: float, l: float, e: float, t: float) -> float:
-    """Offset slider-crank slider position (Norton, Design of Machinery)."""
-    return r * math.cos(t) + math.sqrt(l * l - (r * math.sin(t) - e) ** 2)
-
-
 def test_headline_effort_is_the_virtual_work_peak_of_the_slider_crank():
     # Virtual work (Norton, Design of Machinery): F_pad = F_b dx_b / dx_pad. Worked here on
     # Norton's own closed form, differentiated by central differences, over 4,000 crank
     # angles; the engine's headline must equal the peak (to the grid) and sit where it is.
     r, l, t0, pad_r, swing = 0.05, 0.14, math.radians(80), 0.28, math.radians(30)
     e = r * math.sin(t0)
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    pad = (pad_r * math.cos(t0), pad_r * math.sin(t0))
-    layout = PedalLayout((0.0, 0.0), pad, clevis, (clevis[0] + l, clevis[1]), swing)
+    layout = norton_layout(r, l, t0, swing, pad_radius=pad_r)
     curve = ((0.0, 0.0), (0.002, 1500.0), (0.0045, 1800.0), (0.008, 1300.0))
     play, dead, clearance = 0.001, 0.0015, 0.0012
     build = make_build(layout=layout, pad_travel=pad_r * swing, load_curve=curve,
@@ -125,9 +126,7 @@ def test_without_a_curve_effort_is_taken_at_the_release_point():
     # central differences; the crank angle found with scipy's brentq).
     r, l, t0, pad_r, swing = 0.05, 0.14, math.radians(80), 0.28, math.radians(40)
     e = r * math.sin(t0)
-    clevis = (r * math.cos(t0), r * math.sin(t0))
-    layout = PedalLayout((0.0, 0.0), (pad_r * math.cos(t0), pad_r * math.sin(t0)), clevis,
-                         (clevis[0] + l, clevis[1]), swing)
+    layout = norton_layout(r, l, t0, swing, pad_radius=pad_r)
     build = make_build(layout=layout, pad_travel=pad_r * swing, free_play=0.001,
                        dead_stroke=0.0015)
     s = size_build(build, LOSSLESS, efficiency=1.0)

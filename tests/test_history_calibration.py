@@ -53,6 +53,18 @@ def test_only_measured_and_verified_builds_with_an_effort_count():
     assert calibration.shop.efficiency_median == pytest.approx(np.median([0.80, 0.85, 0.90, 0.95]))
 
 
+def test_a_zero_measured_effort_or_zero_computed_travel_does_not_count():
+    # Neither ratio exists with a zero below the line (apparent efficiency = ideal / measured,
+    # travel factor = measured / computed): such a build adds only its other figure.
+    pairs = history({"QX-5": [0.80, 0.85, 0.90]})
+    pairs += [(make_build("QX-020", effort=0.0), make_sizing("QX-020")),
+              (make_build("QX-021", effort=100 / 0.95), make_sizing("QX-021", slave_travel=0.0))]
+    calibration = calibrate(pairs)
+    assert calibration.shop.n == 4  # QX-021's effort counts, QX-020's does not
+    assert calibration.shop.n_travel == 4  # QX-020's travel counts, QX-021's does not
+    assert calibration.shop.efficiency_median == pytest.approx(np.median([0.80, 0.85, 0.90, 0.95]))
+
+
 def test_group_median_and_mad_agree_with_numpy_and_scipy():
     values = {"QX-5": [0.78, 0.83, 0.85, 0.86, 0.91, 0.62],
               "TR-4B": [0.70, 0.74, 0.69, 0.73]}

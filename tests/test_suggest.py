@@ -107,6 +107,38 @@ def test_a_concentric_slave_stays_concentric():
     assert {row.build.slave.kind for row in result.ranked} <= {"concentric"}
 
 
+def test_a_proposal_built_from_catalogue_parts_tries_each_part_once():
+    master, slave = ONE["masters"]["MC-100"], ONE["slaves"]["SC-112"]
+    built = dataclasses.replace(proposal(), master=dataclasses.replace(master.section, part="MC-100"),
+                                slave=dataclasses.replace(slave.section, part="SC-112"))
+    result = suggest(analyse(shop(ONE)), built)
+    # its own MC-100 and SC-112 and the other two parts of ONE: 2 masters, 2 external slaves
+    assert result.tried == {"masters": 2, "slaves": 2, "clevis": 1}
+    assert all(change.part != change.was_part for row in result.ranked for change in row.changes)
+
+
+def test_an_area_slave_against_a_bore_slave_is_compared_by_area_and_gets_no_standard_bores():
+    # a concentric slave given by piston area; the catalogue's concentric slave by bore
+    concentric = dataclasses.replace(
+        make_build(fork=None, slave_bore=None, piston_area=8.0e-4, slave_stroke=0.6 * INCH),
+        id="PR-0003")
+    parts = catalogue([], [slave_part("CS-112", 1.125, stroke_in=0.6, kind="concentric")])
+    result = suggest(analyse(shop(parts)), concentric, sizes="standard")
+    assert result.tried["slaves"] == 2  # its own and CS-112: no standard bore for an area
+    [change] = {c for row in result.ranked for c in row.changes if c.what == "slave"}
+    assert (change.part, change.dimension, change.was) == ("CS-112", "area", 8.0e-4)
+    assert change.value == pytest.approx(math.pi / 4 * (1.125 * INCH) ** 2, rel=1e-12)
+
+
+def test_a_pull_slave_is_not_tried_for_a_push_proposal():
+    # a pull slave pulls the fork where a push slave pushes it: it cannot stand in for one
+    mixed = catalogue([master_part("MC-100", 1.0)],
+                      [slave_part("SC-112", 1.125), slave_part("SP-112", 1.125, acts="pull")])
+    result = suggest(analyse(shop(mixed)), proposal())
+    assert result.tried["slaves"] == 2  # its own and SC-112
+    assert {row.build.slave.part for row in result.ranked} == {None, "SC-112"}
+
+
 # --- nothing qualifies --------------------------------------------------------------------------
 
 NONE = catalogue([master_part("MC-050", 0.5)], [slave_part("SC-150", 1.5)])
@@ -217,6 +249,53 @@ def test_pressure_is_judged_at_its_worst_case_against_every_rating():
     assert row.headroom == pytest.approx(220 / (static / 0.85) - 1, rel=1e-9)
 
 
+def test_a_margin_past_the_shops_most_misses_travel_over():
+    # by hand: the 1 in master on the 1-1/8 in slave has a 43.7 % margin, the only pair of
+    # ONE that qualifies; with the shop's most at 30 % it misses by 13.7 points
+    margin = by_hand(1.0, 1.125)[1]
+    assert margin == pytest.approx(0.437, abs=5e-4)
+    result = suggest(analyse(shop(ONE, max_travel_margin=0.30)), proposal())
+    row = next(r for r in result.ranked if parts_of(r) == ("MC-100", "SC-112"))
+    [miss] = row.misses
+    assert (miss.rule, miss.limit) == ("travel-over", 0.30)
+    assert miss.shortfall == pytest.approx(margin - 0.30, rel=1e-9)
+    assert result.qualifying == 0 and result.recommendation is None
+
+
+def test_the_margin_is_the_smaller_after_the_shops_measured_travel_losses():
+    # Three finished roadsters whose slaves measured 90 % of the travel worked out, so the
+    # shop's travel factor is 0.9 whatever the shrinkage. The bearing travel is in proportion
+    # to the slave's (a lever, Shigley), so a candidate's margin after losses is
+    # 0.9 (1 + margin) - 1: 29.3 % for the 1 in master on the 1-1/8 in slave (by hand).
+    reach = (7.0 / 5.5) / (0.875 / 0.625) ** 2  # in: equal volumes, Pascal
+    finished = tuple(dataclasses.replace(
+        proposal(), id=f"ZZ-04{n:02d}", status="verified",
+        measured=Measured(pedal_effort=30 * POUND_FORCE, slave_travel=0.9 * reach * INCH))
+        for n in range(1, 4))
+    result = suggest(analyse(shop(ONE, finished)), proposal())
+    row = next(r for r in result.ranked if parts_of(r) == ("MC-100", "SC-112"))
+    margin = by_hand(1.0, 1.125)[1]
+    assert row.sizing.margin == pytest.approx(margin, rel=1e-9)  # the engine's stays
+    assert row.margin == pytest.approx(0.9 * (1.0 + margin) - 1.0, rel=1e-9)
+    assert row.margin == pytest.approx(0.293, abs=5e-4)
+
+
+def test_a_miss_a_rejected_build_used_comes_after_the_other_misses():
+    # NONE's nearest miss by hand is the 1/2 in master on the proposal's slave (see
+    # hand_shortfall); once a rejected roadster used it, it follows the other two misses.
+    rejected = dataclasses.replace(
+        with_parts(make_build(), NONE["masters"]["MC-050"], NONE["slaves"]["SC-150"],
+                   "ZZ-0104", "rejected", outcome="would not release"),
+        slave=proposal().slave)
+    plain = suggest(analyse(shop(NONE)), proposal())
+    nearest = parts_of(plain.ranked[0])
+    assert nearest == ("MC-050", None)
+    result = suggest(analyse(shop(NONE, (rejected,))), proposal())
+    assert [parts_of(row) for row in result.ranked] == (
+        [parts_of(row) for row in plain.ranked if parts_of(row) != nearest] + [nearest])
+    assert [use.id for use in result.ranked[-1].rejected] == ["ZZ-0104"]
+
+
 def test_a_master_that_bottoms_early_misses():
     short = catalogue([master_part("MC-100", 1.0, stroke_in=1.0)], [slave_part("SC-112", 1.125)])
     row = next(r for r in suggest(analyse(shop(short)), proposal()).ranked
@@ -285,6 +364,15 @@ def test_layout_clevis_points_and_lengths_on_the_arm():
                     | {result.proposal.build.pedal.layout.clevis}, key=lambda p: p[1])
     assert points == [pytest.approx((0.0, y * INCH)) for y in (-2.5, -2.0, -1.8)]
     assert all(r.build.pedal.layout.pushrod_seat == layout.pushrod_seat for r in result.ranked)
+
+
+def test_a_layout_hole_within_a_tenth_of_a_millimetre_of_the_one_in_use_is_that_one():
+    layout = PedalLayout(pivot=(0.0, 0.0), pad=(0.0, -11.0 * INCH), clevis=(0.0, -2.0 * INCH),
+                         pushrod_seat=(6.0 * INCH, -2.0 * INCH), rotation_to_stop=math.radians(30),
+                         clevis_positions=((0.00005, -2.0 * INCH), (0.0, -2.5 * INCH)))
+    pedal = dataclasses.replace(make_build().pedal, layout=layout)
+    result = suggest(analyse(shop(TWO)), dataclasses.replace(proposal(), pedal=pedal))
+    assert result.tried["clevis"] == 2  # the hole in use and the one 0.5 in further out
 
 
 def test_sensitivity_of_one_sixteenth_step():

@@ -12,7 +12,7 @@ import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
-from builder.engine.hydraulics import hydraulic_load, line_pressure
+from builder.engine.hydraulics import hydraulic_load, hydraulic_ratio, line_pressure
 from builder.engine.linkage import LeverPedal, SliderCrankPedal
 from builder.engine.travel import pushrod_for_volume, volume_for_release
 
@@ -111,7 +111,7 @@ def pad_force(load: float, pedal_ratio: float, hydraulic: float, fork: float,
     >>> round(pad_force(1700.0, 5.5, 1.36, 2.0, 4.0), 4)
     117.6364
     """
-    return load / (pedal_ratio * hydraulic * fork) + bare
+    return ideal_effort(load, overall_ratio(pedal_ratio, hydraulic, fork)) + bare
 
 
 @dataclass(frozen=True, slots=True)
@@ -152,7 +152,7 @@ class Chain:
     @property
     def hydraulic(self) -> float:
         """R_h = A_s / A_m (hydraulics.hydraulic_ratio)."""
-        return self.slave_area / self.master_area
+        return hydraulic_ratio(self.slave_area, self.master_area)
 
     def bare_at(self, pad: float) -> float:
         """The bare pedal force at a pad travel (N; 0 without one), read between points."""

@@ -44,7 +44,9 @@ class Combination:
     rejected: int
 
 
-def _close(a: float | None, b: float | None, tolerance: float, relative: bool = False) -> bool:
+def within(a: float | None, b: float | None, tolerance: float, relative: bool = False) -> bool:
+    """Whether two figures are the same within a tolerance (absolute, or relative to the
+    larger); two unknown figures are the same, an unknown and a known one are not."""
     if a is None or b is None:
         return a is b
     return abs(a - b) <= (tolerance * max(abs(a), abs(b)) if relative else tolerance)
@@ -54,10 +56,10 @@ def _same(a: tuple[Build, Sizing], b: tuple[Build, Sizing]) -> bool:
     (x, xs), (y, ys) = a, b
     return (x.master.part == y.master.part and x.slave.part == y.slave.part
             and x.pedal.part == y.pedal.part
-            and _close(x.master.bore, y.master.bore, BORE_TOLERANCE)
-            and _close(x.slave.bore, y.slave.bore, BORE_TOLERANCE)
-            and _close(x.slave.area, y.slave.area, AREA_TOLERANCE, relative=True)
-            and _close(xs.ratio_pedal, ys.ratio_pedal, RATIO_TOLERANCE))
+            and within(x.master.bore, y.master.bore, BORE_TOLERANCE)
+            and within(x.slave.bore, y.slave.bore, BORE_TOLERANCE)
+            and within(x.slave.area, y.slave.area, AREA_TOLERANCE, relative=True)
+            and within(xs.ratio_pedal, ys.ratio_pedal, RATIO_TOLERANCE))
 
 
 def combinations(pairs: Sequence[tuple[Build, Sizing]]) -> dict[tuple[str, str], list[Combination]]:

@@ -37,7 +37,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from builder.engine.result import Sizing
-from builder.history.reference import AREA_TOLERANCE, BORE_TOLERANCE
+from builder.history.reference import AREA_TOLERANCE, BORE_TOLERANCE, within
 from builder.model import Build, Master, Slave
 
 CATEGORY_WEIGHTS = {"gearbox.family": 1.0, "gearbox.fork_tip_moves": 1.0, "slave.kind": 1.0}
@@ -197,18 +197,12 @@ class CombinationUse:
     rejected: tuple[RejectedUse, ...]  # rejected builds, by id
 
 
-def _close(a: float | None, b: float | None, tolerance: float, relative: bool = False) -> bool:
-    if a is None or b is None:
-        return a is b
-    return abs(a - b) <= (tolerance * max(abs(a), abs(b)) if relative else tolerance)
-
-
 def same_cylinders(master: Master, slave: Slave, other_master: Master, other_slave: Slave) -> bool:
     """Same master and slave by numbers: bores within BORE_TOLERANCE, slave kind equal and
     piston areas within AREA_TOLERANCE (relative)."""
-    return (_close(master.bore, other_master.bore, BORE_TOLERANCE)
+    return (within(master.bore, other_master.bore, BORE_TOLERANCE)
             and slave.kind == other_slave.kind
-            and _close(slave.area, other_slave.area, AREA_TOLERANCE, relative=True))
+            and within(slave.area, other_slave.area, AREA_TOLERANCE, relative=True))
 
 
 class Combinations:

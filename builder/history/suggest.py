@@ -234,7 +234,7 @@ def misses(build: Build, sizing: Sizing, effort: float, margin: float, pressure:
     if margin < rules.min_travel_margin:
         found.append(Miss("travel-short", margin, rules.min_travel_margin, "fraction",
                           rules.min_travel_margin - margin))
-    most = getattr(rules, "max_travel_margin", None)  # a shop rule once the model has it
+    most = rules.max_travel_margin
     if most is not None and margin > most:
         found.append(Miss("travel-over", margin, most, "fraction", margin - most))
     latest, release = rules.latest_release_point, sizing.release_point
@@ -381,10 +381,6 @@ def _masters(own: Master, parts: dict, sizes: str) -> list[tuple[Master, Change 
     return found
 
 
-def _acts(slave: Slave) -> str:
-    return getattr(slave, "acts", None) or "push"
-
-
 def _slave_value(slave: Slave) -> tuple[float, str]:
     return (slave.bore, "length") if slave.bore is not None else (slave.area, "area")
 
@@ -394,7 +390,7 @@ def _slaves(own: Slave, parts: dict, sizes: str) -> list[tuple[Slave, Change | N
     was, dimension = _slave_value(own)
     for part_id in sorted(parts):
         slave = parts[part_id].section
-        if part_id == own.part or slave.kind != own.kind or _acts(slave) != _acts(own):
+        if part_id == own.part or slave.kind != own.kind or slave.pulls != own.pulls:
             continue
         slave = replace(slave, part=part_id)
         value, its_dimension = _slave_value(slave)
