@@ -85,15 +85,14 @@ def check_build(analysis: Analysis, build: Build, k: int) -> CheckResult:
     """Size a build against the shop's history, with its verdict and, when it is not
     ready, the best CHECK_SUGGESTIONS suggestions."""
     from builder.history import analyse_proposal
-    from builder.history.suggest import combinations_of, suggest
+    from builder.history.suggest import suggest
 
     sizing, prediction, similar, deltas = analyse_proposal(analysis, build, k)
-    combinations = combinations_of(analysis)
-    use = combinations.use(build.gearbox.family, build.gearbox.fork_tip_moves, build.master,
+    use = analysis.finished_combinations.use(build.gearbox.family, build.gearbox.fork_tip_moves, build.master,
                            build.slave, exclude_id=build.id)
     suggestions = None
     if verdict(sizing, use.rejected)[0] == "not_ready":
-        suggestions = suggest(analysis, build, "catalogue", combinations)
+        suggestions = suggest(analysis, build, "catalogue")
     return CheckResult(build, sizing, prediction, deltas, similar, use.rejected, suggestions)
 
 

@@ -472,3 +472,21 @@ def test_when_only_rejected_combinations_qualify_nothing_is_recommended():
     text = say.suggestions_text(result, proposal())
     assert "Only combinations that a rejected build used meet the shop's rules; the first 3:" in text
     assert "<- recommended" not in text
+
+
+def test_the_shops_combinations_are_grouped_once_per_analysis(monkeypatch):
+    # A site with drafts checks every draft against the same history: regrouping every
+    # finished build for each check made the site's draft pages grow as drafts x builds.
+    from builder.history import similar
+
+    made = []
+    original = similar.Combinations.__init__
+    monkeypatch.setattr(similar.Combinations, "__init__",
+                        lambda self, pairs: made.append(1) or original(self, pairs))
+    master, slave = TWO["masters"]["MC-094"], TWO["slaves"]["SC-112"]
+    rejected = with_parts(make_build(), master, slave, "ZZ-0101", "rejected", outcome="dragged")
+    analysis = analyse(shop(TWO, (rejected,)))
+    for _ in range(3):
+        result = check_build(analysis, proposal(), k=0)
+        assert result.suggestions is not None  # not ready: suggest ran too
+    assert len(made) == 1

@@ -1,6 +1,7 @@
 """Everything the report and the site need about a shop's builds, computed once."""
 from __future__ import annotations
 
+import functools
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field, replace
 
@@ -14,7 +15,7 @@ from builder.engine.travel import bearing_travel
 from builder.history.calibration import Calibration, Prediction, calibrate
 from builder.history.deltas import Deltas, deltas
 from builder.history.reference import Combination, combinations
-from builder.history.similar import SimilarBuild, SimilarityIndex
+from builder.history.similar import Combinations, SimilarBuild, SimilarityIndex
 from builder.model import Build, Shop, ShopRules
 
 
@@ -70,6 +71,12 @@ class Analysis:
     reference: dict[tuple[str, str], list[Combination]]  # (family, fork direction) -> rows
     k: int = 5
     _curves: dict[str, tuple[tuple[float, float], ...] | None] = field(default_factory=dict)
+
+    @functools.cached_property
+    def finished_combinations(self) -> Combinations:
+        """The shop's finished builds grouped by gearbox and master and slave, made on first
+        use and kept: `check`, `suggest` and every draft page of the site ask for it."""
+        return Combinations([(build, self.sizings[build.id]) for build in self.builds.values()])
 
     def effort_curve(self, build_id: str) -> tuple[tuple[float, float], ...] | None:
         """(pad travel m, pad effort N) for a build with a load curve, else None.

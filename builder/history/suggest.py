@@ -73,7 +73,7 @@ from builder.engine.result import Sizing
 from builder.history.analysis import Analysis, UnsizableBuilds, judged_on_history
 from builder.history.calibration import Prediction
 from builder.history.reference import AREA_TOLERANCE, BORE_TOLERANCE
-from builder.history.similar import Combinations, CombinationUse, RejectedUse
+from builder.history.similar import CombinationUse, RejectedUse
 from builder.model import Build, Master, Pedal, ShopRules, Slave
 
 Point = tuple[float, float]
@@ -260,8 +260,7 @@ def misses(build: Build, sizing: Sizing, effort: float, margin: float, pressure:
 
 
 def judge(analysis: Analysis, build: Build, changes: tuple[Change, ...] = (),
-          use: CombinationUse | None = None, combinations: Combinations | None = None
-          ) -> Suggestion:
+          use: CombinationUse | None = None) -> Suggestion:
     """Size, predict and judge one candidate build. Raises GeometryError when its pedal
     cannot push its master."""
     rules = analysis.shop.rules
@@ -275,9 +274,9 @@ def judge(analysis: Analysis, build: Build, changes: tuple[Change, ...] = (),
     ratings = [r for r in (build.master.rated_pressure, build.slave.rated_pressure)
                if r is not None]
     if use is None:
-        combinations = combinations or combinations_of(analysis)
-        use = combinations.use(build.gearbox.family, build.gearbox.fork_tip_moves,
-                               build.master, build.slave, exclude_id=build.id)
+        use = analysis.finished_combinations.use(
+            build.gearbox.family, build.gearbox.fork_tip_moves, build.master, build.slave,
+            exclude_id=build.id)
     return Suggestion(
         build=build, changes=changes, sizing=sizing, prediction=prediction, effort=effort,
         margin=margin, pressure_worst=pressure,
@@ -285,13 +284,7 @@ def judge(analysis: Analysis, build: Build, changes: tuple[Change, ...] = (),
         misses=misses(build, sizing, effort, margin, pressure, rules), use=use)
 
 
-def combinations_of(analysis: Analysis) -> Combinations:
-    """The shop's finished builds grouped by gearbox and master and slave."""
-    return Combinations([(build, analysis.sizings[build.id]) for build in analysis.builds.values()])
-
-
-def suggest(analysis: Analysis, build: Build, sizes: str = "catalogue",
-            combinations: Combinations | None = None) -> Suggestions:
+def suggest(analysis: Analysis, build: Build, sizes: str = "catalogue") -> Suggestions:
     """Every candidate for the proposal `build`, sized, judged and ranked (module docstring).
 
     Raises UnsizableBuilds when the proposal itself cannot be sized.
@@ -299,9 +292,9 @@ def suggest(analysis: Analysis, build: Build, sizes: str = "catalogue",
     if sizes not in SIZES:
         raise ValueError(f"sizes must be one of {SIZES}")
     rules = analysis.shop.rules
-    combinations = combinations or combinations_of(analysis)
+    combinations = analysis.finished_combinations
     try:
-        proposal = judge(analysis, build, combinations=combinations)
+        proposal = judge(analysis, build)
     except GeometryError as error:
         raise UnsizableBuilds([(build, error)]) from None
     masters = _masters(build.master, analysis.shop.parts.get("masters", {}), sizes)
