@@ -120,12 +120,13 @@ def _run(action):
 @click.pass_obj
 def validate(ctx: Context, paths: tuple[Path, ...]) -> None:
     """Check the shop rules, parts catalogue and build records (or only PATHS)."""
-    from builder.located import unsizable, unsizable_problems
+    from builder.engine.batch import pedal_refusals
+    from builder.located import unsizable_problems
     from builder.records import validate_and_load
 
     _, builds, problems = validate_and_load(ctx.records, list(paths),
                                             progress=progress_reporter("validating"))
-    problems += unsizable_problems(unsizable(builds))  # pedals that cannot push their master
+    problems += unsizable_problems(pedal_refusals(builds))  # pedals that cannot push their master
     if problems:
         fail(problems)
     click.echo(f"All records valid ({len(builds)} builds).")

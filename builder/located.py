@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from builder.engine.batch import pedal_refusals
 from builder.presentation import geometry_message
 from builder.problems import Problem
 from builder.records import locate
@@ -12,12 +11,6 @@ from builder.records import locate
 if TYPE_CHECKING:
     from builder.engine import GeometryError
     from builder.model import Build
-
-
-def unsizable(builds: list[Build]) -> list[tuple[Build, GeometryError]]:
-    """Every build whose pedal cannot push its master, with the engine's reason (for
-    `fitment validate`, which needs no history and no other figure)."""
-    return pedal_refusals(builds)
 
 
 def unsizable_problems(failures: list[tuple[Build, GeometryError]]) -> list[Problem]:

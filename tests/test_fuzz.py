@@ -33,7 +33,8 @@ from builder import check as checking
 from builder import report as reporting
 from builder.engine.linkage import RATIO_RANGE
 from builder.history import UnsizableBuilds, analyse
-from builder.located import unsizable, unsizable_problems
+from builder.engine.batch import pedal_refusals
+from builder.located import unsizable_problems
 from builder.model import Build
 from builder.problems import InputError, Problem, terminal_safe
 from builder.records import (load_build_file, load_catalogue, load_rules, load_shop, validate_and_load,
@@ -359,7 +360,7 @@ def layout_never_raises(env: Env, content: bytes) -> None:
     env.in_records.write_bytes(content)
     rules, builds, problems = validate_and_load(env.records, [env.in_records])
     if not problems:
-        problems = unsizable_problems(unsizable(builds))
+        problems = unsizable_problems(pedal_refusals(builds))
     if problems:
         assert_located(problems, env.in_records)
         assert any(p.field.startswith("pedal.layout") and p.line > 0 for p in problems), problems
@@ -421,7 +422,7 @@ def test_the_issues_layout_is_a_located_problem(env):
     content = _layout_text((-90, -296), (54, 12), (114, -60), 77)
     layout_never_raises(env, content)
     rules, builds, _ = validate_and_load(env.records, [env.in_records])
-    ((build, error),) = unsizable(builds)
+    ((build, error),) = pedal_refusals(builds)
     assert error.reason == "dead-centre"
     (problem,) = unsizable_problems([(build, error)])
     assert problem.field == "pedal.layout" and "dead centre" in problem.message
