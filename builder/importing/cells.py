@@ -48,7 +48,7 @@ _CELL_QUANTITY = re.compile(
 )
 _THOUSANDS = re.compile(r"\d{1,3}(?:,\d{3})+(?:\.\d*)?")
 _EXAMPLES = {"length": "7/8, .875, 22.2mm or 1 1/8\"", "force": "410 lbf, 35# or 1.9 kN", "pressure": "1200 psi, 8 MPa",
-             "area": "1.9 in^2", "angle": "30 deg"}
+             "area": "1.9 in^2"}  # other dimensions: units.DIMENSIONS' example
 
 
 def text(cell: object) -> str:
